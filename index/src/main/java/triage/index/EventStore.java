@@ -1,0 +1,62 @@
+package triage.index;
+
+import java.io.Closeable;
+import java.io.IOException;
+import java.nio.file.Path;
+import java.util.List;
+import java.util.Optional;
+import triage.index.impl.LuceneEventStore;
+
+/**
+ * An open event index. Reads are thread-safe; results are deterministic (sums are taken segment by segment
+ * and combined in a fixed order).
+ */
+public interface EventStore extends Closeable {
+  /**
+   * Opens the index in a folder.
+   *
+   * @throws IndexException when there is no index, it is damaged, or its format is unknown
+   */
+  static EventStore open(Path dir) {
+    return LuceneEventStore.open(dir);
+  }
+
+  /** The folder of the index. */
+  Path dir();
+
+  /** What the index holds. */
+  Manifest manifest();
+
+  /** Per-sample sums over the selected events, in manifest order (samples not selected have zero sums). */
+  List<SampleSums> sums(Selection selection) throws IOException;
+
+  /** Per-sample histograms of a numeric column over the selected events, in manifest order. */
+  List<Histogram> histogram(Selection selection, String column, int bins, double lo, double hi)
+      throws IOException;
+
+  /** The event of a sample with this id. */
+  Optional<EventRecord> event(String sample, long id) throws IOException;
+
+  /**
+   * The values of numeric columns for every event of a sample, feature-major and in row order: value of column c
+   * for the sample's i-th event is {@code result[c][i]}.
+   */
+  double[][] columns(String sample, List<String> columns) throws IOException;
+
+  /** The nominal weights of a sample's events, in row order. */
+  double[] weights(String sample) throws IOException;
+
+  /**
+   * Adds a model version's scores without re-ingesting: one value per index row (all samples, row order), written
+   * and registered atomically. Replaces an earlier version of the same name.
+   *
+   * @param version the version name
+   * @param scoresByRow one score per row, length {@link Manifest#totalEvents()}
+   * @param modelJson the model's description, stored beside the scores, or null
+   * @return the updated manifest
+   */
+  Manifest addScores(String version, double[] scoresByRow, String modelJson) throws IOException;
+
+  /** The scores of a model version, by row. */
+  double[] scores(String version) throws IOException;
+}

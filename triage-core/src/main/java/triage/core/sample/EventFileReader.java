@@ -1,0 +1,552 @@
+package triage.core.sample;
+
+import java.io.BufferedInputStream;
+import java.io.BufferedReader;
+import java.io.IOException;
+import java.io.InputStream;
+import java.io.InputStreamReader;
+import java.io.Reader;
+import java.io.UncheckedIOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.NoSuchFileException;
+import java.nio.file.Path;
+import java.security.DigestInputStream;
+import java.security.MessageDigest;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.Iterator;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.zip.GZIPInputStream;
+import java.util.zip.ZipException;
+import org.apache.commons.csv.CSVFormat;
+import org.apache.commons.csv.CSVParser;
+import org.apache.commons.csv.CSVRecord;
+import triage.core.provenance.Fingerprints;
+import triage.core.sample.RowProblem.Kind;
+import triage.core.stats.NeumaierSum;
+import triage.core.stats.WeightedMoments;
+
+/**
+ * Streams one sample file (CSV or TSV, plain or gzip-compressed) into batches of primitive arrays, checking every
+ * row against the spec.
+ *
+ * <p>The delimiter is a tab for names ending in {@code .tsv} or {@code .tsv.gz} (or {@code .tab}), else a comma;
+ * compression is recognised by the gzip magic bytes, not the name. Memory is bounded by one batch plus the
+ * duplicate-id set (12 bytes per slot).
+ *
+ * <p>Checks, in this order, each reported with file, line and column:
+ * <ul>
+ *   <li>the file exists, is not empty, and its first line is a header naming every declared column once;</li>
+ *   <li>every row has as many fields as the header;</li>
+ *   <li>features, weights, variation weights and the score are finite decimal numbers (no NaN, no ±Infinity);</li>
+ *   <li>id, run and block are whole numbers; categories are not empty;</li>
+ *   <li>nominal and variation weights are positive unless {@link WeightPolicy#ANY_FINITE} is chosen;</li>
+ *   <li>the event id was not seen before in this file.</li>
+ * </ul>
+ * A bad row stops the read ({@link BadRowPolicy#FAIL}) or goes to the reject sink ({@link BadRowPolicy#SKIP}).
+ */
+public final class EventFileReader {
+  private EventFileReader() {
+    // no instance
+  }
+
+  /**
+   * Reads a sample file.
+   *
+   * @param spec the analysis' spec (columns and variations)
+   * @param source the sample to read
+   * @param options policies and batch size
+   * @param sink receives filled batches
+   * @param rejects receives rejected rows when skipping; may be null with {@link BadRowPolicy#FAIL}
+   * @return counts and sums of what was read
+   * @throws InputException for a missing, empty or malformed file, or the first bad row under FAIL
+   * @throws IOException when the sink fails or the file cannot be read
+   */
+  public static ReadResult read(SampleSpec spec, SampleSource source, ReadOptions options, BatchSink sink,
+      RejectSink rejects) throws IOException {
+    Path file = source.path();
+    if (!Files.isRegularFile(file)) {
+      throw new InputException(file, Files.exists(file) ? "not a regular file" : "file not found");
+    }
+    if (Files.size(file) == 0) {
+      throw new InputException(file, 1, 0, "empty file: expected a header line naming the columns", null);
+    }
+    char delimiter = delimiterFor(file);
+    MessageDigest digest = Fingerprints.sha256();
+    boolean compressed;
+    try (InputStream raw = new DigestInputStream(new BufferedInputStream(Files.newInputStream(file), 1 << 16),
+        digest)) {
+      raw.mark(2);
+      int b0 = raw.read();
+      int b1 = raw.read();
+      raw.reset();
+      compressed = b0 == 0x1f && b1 == 0x8b;
+      // The parser closes what it reads; keep the digesting stream open so the rest can be drained below.
+      InputStream shielded = new java.io.FilterInputStream(raw) {
+        @Override
+        public void close() {
+          // left open on purpose; the outer try closes the file
+        }
+      };
+      InputStream in = compressed ? new GZIPInputStream(shielded, 1 << 16) : shielded;
+      Reader reader = new BufferedReader(new InputStreamReader(in, StandardCharsets.UTF_8), 1 << 20);
+      Parse parse = new Parse(spec, source, options, sink, rejects, file, delimiter);
+      parse.run(reader);
+      // Drain what the parser left unread (a gzip trailer) so that the fingerprint covers the whole file.
+      byte[] rest = new byte[1 << 16];
+      while (raw.read(rest) > 0) {
+        // keep reading
+      }
+      return parse.result(Fingerprints.hex(digest), compressed);
+    } catch (ZipException | java.io.EOFException e) {
+      throw new InputException(file, 0, 0, "damaged gzip data: " + e.getMessage(), e);
+    } catch (NoSuchFileException e) {
+      throw new InputException(file, "file not found");
+    }
+  }
+
+  /** Tab for {@code .tsv}, {@code .tab} (optionally {@code .gz}), else comma. */
+  static char delimiterFor(Path file) {
+    String name = file.getFileName().toString().toLowerCase(java.util.Locale.ROOT);
+    if (name.endsWith(".gz")) {
+      name = name.substring(0, name.length() - 3);
+    }
+    return name.endsWith(".tsv") || name.endsWith(".tab") ? '\t' : ',';
+  }
+
+  /** The state of one read. */
+  private static final class Parse {
+    /** The spec's columns. */
+    private final Columns columns;
+
+    /** The spec's variations. */
+    private final List<Variation> variations;
+
+    /** The sample read. */
+    private final SampleSource source;
+
+    /** Policies. */
+    private final ReadOptions options;
+
+    /** Receives batches. */
+    private final BatchSink sink;
+
+    /** Receives rejected rows. */
+    private final RejectSink rejects;
+
+    /** The file read. */
+    private final Path file;
+
+    /** The delimiter. */
+    private final char delimiter;
+
+    /** Header names. */
+    private List<String> header;
+
+    /** Field index of each feature. */
+    private int[] featureAt;
+
+    /** Field index of the weight, or -1. */
+    private int weightAt = -1;
+
+    /** Field indexes of variation up/down weights, interleaved. */
+    private int[] variationAt;
+
+    /** Field index of the id. */
+    private int idAt;
+
+    /** Field index of the run, or -1. */
+    private int runAt = -1;
+
+    /** Field index of the block, or -1. */
+    private int blockAt = -1;
+
+    /** Field indexes of category columns. */
+    private int[] categoryAt;
+
+    /** Field index of the score, or -1. */
+    private int scoreAt = -1;
+
+    /** Category dictionaries: text → code, and code → text. */
+    private final List<Map<String, Integer>> categoryCodes = new ArrayList<>();
+
+    /** Category values by code, per column. */
+    private final List<List<String>> categoryValues = new ArrayList<>();
+
+    /** Ids seen. */
+    private final LongIdSet ids = new LongIdSet();
+
+    /** Counters. */
+    private long rowsRead;
+
+    /** Rows accepted. */
+    private long rowsAccepted;
+
+    /** Rows rejected. */
+    private long rowsRejected;
+
+    /** Rejected rows by kind. */
+    private final Map<String, Long> rejectedByKind = new LinkedHashMap<>();
+
+    /** Accepted events with w < 0. */
+    private long negativeWeights;
+
+    /** Accepted events with w == 0. */
+    private long zeroWeights;
+
+    /** Σ w. */
+    private final NeumaierSum sumW = new NeumaierSum();
+
+    /** Σ w². */
+    private final NeumaierSum sumW2 = new NeumaierSum();
+
+    /** Per-feature weighted moments. */
+    private WeightedMoments[] moments;
+
+    /** Columns in the header the spec does not name. */
+    private final List<String> ignored = new ArrayList<>();
+
+    /** The batch being filled. */
+    private EventBatch batch;
+
+    /** The problem found in the current row, if any. */
+    private RowProblem problem;
+
+    Parse(SampleSpec spec, SampleSource source, ReadOptions options, BatchSink sink, RejectSink rejects,
+        Path file, char delimiter) {
+      this.columns = spec.columns();
+      this.variations = spec.variations();
+      this.source = source;
+      this.options = options;
+      this.sink = sink;
+      this.rejects = rejects;
+      this.file = file;
+      this.delimiter = delimiter;
+      if (options.badRows() == BadRowPolicy.SKIP && rejects == null) {
+        throw new IllegalArgumentException("skipping bad rows needs a reject sink");
+      }
+    }
+
+    void run(Reader reader) throws IOException {
+      CSVFormat format = CSVFormat.DEFAULT.builder().setDelimiter(delimiter).setIgnoreEmptyLines(false)
+          .setQuote('"').get();
+      try (CSVParser parser = CSVParser.builder().setReader(reader).setFormat(format).get()) {
+        Iterator<CSVRecord> it = parser.iterator();
+        long lineBefore = parser.getCurrentLineNumber();
+        if (!it.hasNext()) {
+          throw new InputException(file, 1, 0, "no header line: expected the column names", null);
+        }
+        readHeader(it.next());
+        int featureCount = featureAt.length;
+        moments = new WeightedMoments[featureCount];
+        for (int k = 0; k < featureCount; k++) {
+          moments[k] = new WeightedMoments();
+        }
+        batch = new EventBatch(options.batchSize(), featureCount, variationAt.length / 2, categoryAt.length,
+            runAt >= 0, blockAt >= 0, scoreAt >= 0, categoryValues);
+        lineBefore = parser.getCurrentLineNumber();
+        while (true) {
+          CSVRecord record;
+          try {
+            if (!it.hasNext()) {
+              break;
+            }
+            record = it.next();
+          } catch (UncheckedIOException e) {
+            throw new InputException(file, lineBefore + 1, 0, "cannot parse the row: " + rootMessage(e), e);
+          }
+          long line = lineBefore + 1;
+          lineBefore = parser.getCurrentLineNumber();
+          rowsRead++;
+          row(record, line);
+        }
+      } catch (UncheckedIOException e) {
+        throw new InputException(file, 0, 0, "cannot read: " + rootMessage(e), e);
+      }
+      if (batch.size() > 0) {
+        sink.accept(batch);
+        batch.clear();
+      }
+    }
+
+    private static String rootMessage(Throwable e) {
+      Throwable t = e;
+      while (t.getCause() != null) {
+        t = t.getCause();
+      }
+      return t.getMessage();
+    }
+
+    private void readHeader(CSVRecord record) {
+      header = new ArrayList<>();
+      Map<String, Integer> at = new HashMap<>();
+      for (int i = 0; i < record.size(); i++) {
+        String name = record.get(i).strip();
+        if (i == 0 && name.startsWith("\uFEFF")) {
+          name = name.substring(1);
+        }
+        if (at.put(name, i) != null) {
+          throw new InputException(file, 1, i + 1, "header names column '" + name + "' twice", null);
+        }
+        header.add(name);
+      }
+      List<String> missing = new ArrayList<>();
+      featureAt = new int[columns.features().size()];
+      for (int k = 0; k < featureAt.length; k++) {
+        featureAt[k] = find(at, columns.features().get(k), missing);
+      }
+      idAt = find(at, columns.id(), missing);
+      if (columns.run() != null) {
+        runAt = find(at, columns.run(), missing);
+      }
+      if (columns.block() != null) {
+        blockAt = find(at, columns.block(), missing);
+      }
+      categoryAt = new int[columns.categories().size()];
+      for (int k = 0; k < categoryAt.length; k++) {
+        categoryAt[k] = find(at, columns.categories().get(k), missing);
+        categoryCodes.add(new HashMap<>());
+        categoryValues.add(new ArrayList<>());
+      }
+      if (columns.score() != null) {
+        scoreAt = find(at, columns.score(), missing);
+      }
+      if (source.weight() != null) {
+        weightAt = find(at, source.weight(), missing);
+      }
+      boolean weighted = source.role().weighted();
+      variationAt = new int[weighted ? variations.size() * 2 : 0];
+      if (weighted) {
+        for (int j = 0; j < variations.size(); j++) {
+          variationAt[2 * j] = find(at, variations.get(j).up(), missing);
+          variationAt[2 * j + 1] = find(at, variations.get(j).down(), missing);
+        }
+      }
+      if (!missing.isEmpty()) {
+        throw new InputException(file, 1, 0, "header lacks declared column" + (missing.size() > 1 ? "s " : " ")
+            + String.join(", ", missing) + " (the header has: " + String.join(", ", header) + ")", null);
+      }
+      java.util.Set<Integer> used = new java.util.HashSet<>();
+      for (int i : featureAt) {
+        used.add(i);
+      }
+      for (int i : categoryAt) {
+        used.add(i);
+      }
+      for (int i : variationAt) {
+        used.add(i);
+      }
+      used.add(idAt);
+      used.add(runAt);
+      used.add(blockAt);
+      used.add(scoreAt);
+      used.add(weightAt);
+      for (int i = 0; i < header.size(); i++) {
+        if (!used.contains(i)) {
+          ignored.add(header.get(i));
+        }
+      }
+    }
+
+    private static int find(Map<String, Integer> at, String name, List<String> missing) {
+      Integer i = at.get(name);
+      if (i == null) {
+        missing.add(name);
+        return -1;
+      }
+      return i;
+    }
+
+    private void row(CSVRecord record, long line) throws IOException {
+      problem = null;
+      if (record.size() != header.size()) {
+        problem = new RowProblem(file, line, 0, null, null, Kind.FIELD_COUNT,
+            header.size() + " fields as in the header, found " + record.size());
+        reject(record);
+        return;
+      }
+      int slot = batch.next();
+      int nf = featureAt.length;
+      for (int k = 0; k < nf && problem == null; k++) {
+        batch.features[slot * nf + k] = number(record, featureAt[k], line);
+      }
+      double w = 1.0;
+      if (problem == null && weightAt >= 0) {
+        w = weight(record, weightAt, line);
+      }
+      int nv = variationAt.length;
+      for (int j = 0; j < nv && problem == null; j++) {
+        batch.variations[slot * nv + j] = weight(record, variationAt[j], line);
+      }
+      long id = 0;
+      if (problem == null) {
+        id = integer(record, idAt, line);
+      }
+      if (problem == null && runAt >= 0) {
+        batch.runs[slot] = integer(record, runAt, line);
+      }
+      if (problem == null && blockAt >= 0) {
+        batch.blocks[slot] = integer(record, blockAt, line);
+      }
+      int nc = categoryAt.length;
+      for (int k = 0; k < nc && problem == null; k++) {
+        batch.categories[slot * nc + k] = category(record, k, line);
+      }
+      if (problem == null && scoreAt >= 0) {
+        batch.scores[slot] = number(record, scoreAt, line);
+      }
+      if (problem == null) {
+        long first = ids.add(id, line);
+        if (first != 0) {
+          problem = new RowProblem(file, line, idAt + 1, header.get(idAt), record.get(idAt), Kind.DUPLICATE_ID,
+              "an id not seen before in this sample (first seen on line " + (first > 0 ? first : "?") + ")");
+        }
+      }
+      if (problem != null) {
+        reject(record);
+        return;
+      }
+      batch.weights[slot] = w;
+      batch.ids[slot] = id;
+      batch.lines[slot] = line;
+      batch.commit();
+      rowsAccepted++;
+      sumW.add(w);
+      sumW2.add(w * w);
+      if (w < 0) {
+        negativeWeights++;
+      } else if (w == 0) {
+        zeroWeights++;
+      }
+      for (int k = 0; k < nf; k++) {
+        moments[k].accept(batch.features[slot * nf + k], w);
+      }
+      if (batch.full()) {
+        sink.accept(batch);
+        batch.clear();
+      }
+    }
+
+    private void reject(CSVRecord record) throws IOException {
+      rowsRejected++;
+      rejectedByKind.merge(problem.kind().label(), 1L, Long::sum);
+      if (options.badRows() == BadRowPolicy.FAIL) {
+        throw new InputException(file, problem.line(), problem.column(), problem.message().substring(
+            InputException.place(file, problem.line(), problem.column()).length())
+            + " (to set bad rows aside instead, use --on-bad-row skip)", null);
+      }
+      rejects.reject(problem, record.toList());
+    }
+
+    private double number(CSVRecord record, int at, long line) {
+      String text = record.get(at);
+      double v = parseNumber(text);
+      if (Double.isFinite(v)) {
+        return v;
+      }
+      String t = text.strip();
+      if (t.isEmpty()) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), text, Kind.EMPTY_VALUE, "a finite number");
+      } else if (Double.isNaN(v) && !isNanText(t)) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), text, Kind.NOT_A_NUMBER,
+            "a decimal number such as 12.5 or -3e-2");
+      } else {
+        problem = new RowProblem(file, line, at + 1, header.get(at), text, Kind.NOT_FINITE,
+            "a finite number (NaN and infinities are not accepted)");
+      }
+      return 0;
+    }
+
+    private static boolean isNanText(String t) {
+      return t.equalsIgnoreCase("nan") || t.equalsIgnoreCase("+nan") || t.equalsIgnoreCase("-nan");
+    }
+
+    private double weight(CSVRecord record, int at, long line) {
+      double w = number(record, at, line);
+      if (problem == null && !(w > 0) && options.weights() == WeightPolicy.POSITIVE) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at), Kind.NON_POSITIVE_WEIGHT,
+            "a positive weight (to accept zero and negative weights, use --allow-negative-weights)");
+      }
+      return w;
+    }
+
+    private long integer(CSVRecord record, int at, long line) {
+      String text = record.get(at).strip();
+      try {
+        return Long.parseLong(text);
+      } catch (NumberFormatException e) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at),
+            text.isEmpty() ? Kind.EMPTY_VALUE : Kind.NOT_AN_INTEGER, "a whole number");
+        return 0;
+      }
+    }
+
+    private int category(CSVRecord record, int k, long line) {
+      int at = categoryAt[k];
+      String text = record.get(at).strip();
+      if (text.isEmpty()) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at), Kind.EMPTY_VALUE,
+            "a category value");
+        return 0;
+      }
+      Map<String, Integer> codes = categoryCodes.get(k);
+      Integer code = codes.get(text);
+      if (code == null) {
+        code = codes.size();
+        codes.put(text, code);
+        categoryValues.get(k).add(text);
+      }
+      return code;
+    }
+
+    ReadResult result(String sha256, boolean compressed) {
+      if (rowsRead == 0) {
+        throw new InputException(file, 2, 0, "no events after the header line", null);
+      }
+      int nf = featureAt.length;
+      double[] means = new double[nf];
+      double[] sds = new double[nf];
+      for (int k = 0; k < nf; k++) {
+        means[k] = moments[k].mean();
+        sds[k] = moments[k].populationStandardDeviation();
+      }
+      return new ReadResult(source.name(), file.toString(), sha256, compressed, delimiter, rowsRead, rowsAccepted,
+          rowsRejected, rejectedByKind, negativeWeights, zeroWeights, sumW.value(), sumW2.value(), means, sds,
+          ignored);
+    }
+  }
+
+  /**
+   * Parses a decimal number strictly: NaN for text that is not a plain decimal number, and the parsed value
+   * (which may be infinite or NaN) for the spellings of NaN and infinity, so the caller can tell them apart.
+   * Java's suffixes ({@code 1f}, {@code 2d}) and hexadecimal floats are refused.
+   */
+  static double parseNumber(String text) {
+    String t = text.strip();
+    if (t.isEmpty()) {
+      return Double.NaN;
+    }
+    char last = t.charAt(t.length() - 1);
+    if (!(last >= '0' && last <= '9') && last != '.') {
+      String lower = t.toLowerCase(java.util.Locale.ROOT);
+      if (lower.equals("inf") || lower.equals("+inf") || lower.equals("infinity") || lower.equals("+infinity")) {
+        return Double.POSITIVE_INFINITY;
+      }
+      if (lower.equals("-inf") || lower.equals("-infinity")) {
+        return Double.NEGATIVE_INFINITY;
+      }
+      return Double.NaN;
+    }
+    if (t.indexOf('x') >= 0 || t.indexOf('X') >= 0) {
+      return Double.NaN;
+    }
+    try {
+      return Double.parseDouble(t);
+    } catch (NumberFormatException e) {
+      return Double.NaN;
+    }
+  }
+}

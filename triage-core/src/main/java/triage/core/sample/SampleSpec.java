@@ -1,0 +1,181 @@
+package triage.core.sample;
+
+import com.fasterxml.jackson.annotation.JsonInclude;
+import com.fasterxml.jackson.annotation.JsonProperty;
+import com.fasterxml.jackson.core.JsonLocation;
+import com.fasterxml.jackson.core.JsonProcessingException;
+import com.fasterxml.jackson.databind.DeserializationFeature;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.SerializationFeature;
+import com.fasterxml.jackson.databind.exc.UnrecognizedPropertyException;
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.NoSuchFileException;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Set;
+
+/**
+ * An analysis' inputs: the columns all samples share, the systematic variations, and one entry per file.
+ * Written as JSON ({@code "format": "triage-samples/1"}); see {@code docs/sample-spec.md}.
+ *
+ * @param format the spec format, {@value #FORMAT}
+ * @param columns the columns every sample has
+ * @param variations systematic-variation weight pairs, carried by reference samples
+ * @param samples the input files
+ */
+@JsonInclude(JsonInclude.Include.NON_EMPTY)
+public record SampleSpec(String format, Columns columns, List<Variation> variations, List<SampleSource> samples) {
+
+  /** The only spec format this version reads. */
+  public static final String FORMAT = "triage-samples/1";
+
+  /** The mapper used to read and write specs; strict about unknown fields. */
+  private static final ObjectMapper MAPPER = new ObjectMapper()
+      .enable(DeserializationFeature.FAIL_ON_UNKNOWN_PROPERTIES)
+      .enable(DeserializationFeature.FAIL_ON_NULL_FOR_PRIMITIVES)
+      .enable(SerializationFeature.INDENT_OUTPUT);
+
+  /** Checks the format, that sample names are unique and that variation columns clash with no other column. */
+  public SampleSpec {
+    if (format == null) {
+      format = FORMAT;
+    }
+    if (!FORMAT.equals(format)) {
+      throw new IllegalArgumentException("spec format '" + format + "' is not known to this version (expected '"
+          + FORMAT + "')");
+    }
+    if (columns == null) {
+      throw new IllegalArgumentException("spec has no 'columns'");
+    }
+    variations = variations == null ? List.of() : List.copyOf(variations);
+    if (samples == null || samples.isEmpty()) {
+      throw new IllegalArgumentException("spec has no 'samples'");
+    }
+    samples = List.copyOf(samples);
+    Set<String> names = new HashSet<>();
+    for (SampleSource s : samples) {
+      if (!names.add(s.name())) {
+        throw new IllegalArgumentException("sample name '" + s.name() + "' is used twice");
+      }
+    }
+    Set<String> used = new HashSet<>(columns.all());
+    Set<String> variationNames = new HashSet<>();
+    for (Variation v : variations) {
+      if (!variationNames.add(v.name())) {
+        throw new IllegalArgumentException("variation '" + v.name() + "' is named twice");
+      }
+      for (String c : List.of(v.up(), v.down())) {
+        if (!used.add(c)) {
+          throw new IllegalArgumentException("variation '" + v.name() + "' column '" + c
+              + "' is already used by another column");
+        }
+      }
+    }
+    for (SampleSource s : samples) {
+      if (s.weight() != null && used.contains(s.weight())) {
+        throw new IllegalArgumentException("sample '" + s.name() + "' weight column '" + s.weight()
+            + "' is already used by another column");
+      }
+    }
+  }
+
+  /** The sample with this name, or null. */
+  public SampleSource sample(String name) {
+    for (SampleSource s : samples) {
+      if (s.name().equals(name)) {
+        return s;
+      }
+    }
+    return null;
+  }
+
+  /** The samples of a role, in spec order. */
+  public List<SampleSource> samples(Role role) {
+    List<SampleSource> out = new ArrayList<>();
+    for (SampleSource s : samples) {
+      if (s.role() == role) {
+        out.add(s);
+      }
+    }
+    return out;
+  }
+
+  /** The same spec with every relative file resolved against a folder. */
+  public SampleSpec resolvedAgainst(Path folder) {
+    List<SampleSource> resolved = new ArrayList<>();
+    for (SampleSource s : samples) {
+      resolved.add(s.resolvedAgainst(folder));
+    }
+    return new SampleSpec(format, columns, variations, resolved);
+  }
+
+  /** The spec as indented JSON. */
+  public String toJson() {
+    try {
+      return MAPPER.writeValueAsString(this);
+    } catch (JsonProcessingException e) {
+      throw new IllegalStateException(e);
+    }
+  }
+
+  /** The field name Jackson uses for {@link #format()}. */
+  @Override
+  @JsonProperty("format")
+  public String format() {
+    return format;
+  }
+
+  /**
+   * Reads and checks a spec file; relative sample files are resolved against the spec's folder.
+   *
+   * @throws InputException naming the file, line and column of the first problem
+   */
+  public static SampleSpec read(Path file) {
+    String text;
+    try {
+      text = Files.readString(file);
+    } catch (NoSuchFileException e) {
+      throw new InputException(file, "sample spec not found");
+    } catch (IOException e) {
+      throw new InputException(file, 0, 0, "cannot read the sample spec: " + e.getMessage(), e);
+    }
+    Path folder = file.toAbsolutePath().getParent();
+    return parse(text, file).resolvedAgainst(folder);
+  }
+
+  /**
+   * Parses a spec from JSON text without resolving files.
+   *
+   * @param text the JSON
+   * @param origin the file named in error messages, or null
+   * @throws InputException naming the line and column of the first problem
+   */
+  public static SampleSpec parse(String text, Path origin) {
+    try {
+      SampleSpec spec = MAPPER.readValue(text, SampleSpec.class);
+      if (spec == null) {
+        throw new InputException(origin, 1, 1, "empty sample spec: expected a JSON object", null);
+      }
+      return spec;
+    } catch (UnrecognizedPropertyException e) {
+      JsonLocation at = e.getLocation();
+      throw new InputException(origin, at == null ? 0 : at.getLineNr(), at == null ? 0 : at.getColumnNr(),
+          "unknown field '" + e.getPropertyName() + "', expected one of " + e.getKnownPropertyIds(), null);
+    } catch (JsonProcessingException e) {
+      JsonLocation at = e.getLocation();
+      String why = e.getOriginalMessage();
+      Throwable root = e;
+      while (root.getCause() != null) {
+        root = root.getCause();
+      }
+      if (root instanceof IllegalArgumentException) {
+        why = root.getMessage();
+      }
+      throw new InputException(origin, at == null ? 0 : at.getLineNr(), at == null ? 0 : at.getColumnNr(),
+          "bad sample spec: " + why, null);
+    }
+  }
+}

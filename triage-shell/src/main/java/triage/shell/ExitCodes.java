@@ -1,0 +1,23 @@
+package triage.shell;
+
+/** The documented exit codes of every command. */
+public final class ExitCodes {
+  /** Success. */
+  public static final int OK = 0;
+
+  /** An internal error (a bug): the message asks for a report. */
+  public static final int INTERNAL = 1;
+
+  /** A usage error: unknown command or option, bad option value. */
+  public static final int USAGE = 2;
+
+  /** Invalid input: a file, spec or index that is missing, malformed or inconsistent. */
+  public static final int INPUT = 3;
+
+  /** The footer listing the codes, shown in every command's help. */
+  public static final String FOOTER = "%nExit codes: 0 success, 1 internal error, 2 usage error, 3 invalid input.";
+
+  private ExitCodes() {
+    // no instance
+  }
+}

@@ -1,0 +1,180 @@
+package triage.shell.bench;
+
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.Arrays;
+import java.util.Comparator;
+import java.util.List;
+import java.util.concurrent.Callable;
+import java.util.stream.Stream;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+import triage.core.sample.SampleSpec;
+import triage.index.EventStore;
+import triage.index.Histogram;
+import triage.index.Ingest;
+import triage.index.IngestReport;
+import triage.index.SampleSums;
+import triage.index.Selection;
+import triage.shell.ExitCodes;
+import triage.shell.Output;
+import triage.shell.VersionProvider;
+
+/** {@code triage bench}: benchmarks that print figures. */
+@Command(name = "bench", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
+    description = "Benchmarks on generated data; they print figures (run them on a quiet machine).",
+    subcommands = {BenchCommand.IngestBench.class, BenchCommand.SelectBench.class}, footer = ExitCodes.FOOTER)
+public final class BenchCommand implements Runnable {
+  /** Filled by picocli. */
+  @CommandLine.Spec
+  CommandLine.Model.CommandSpec spec;
+
+  @Override
+  public void run() {
+    spec.commandLine().usage(spec.commandLine().getOut());
+  }
+
+  /** Options shared by the benchmarks. */
+  static class Common {
+    /** Events. */
+    @Option(names = "--events", defaultValue = "1000000", paramLabel = "N",
+        description = "Events in all (default: ${DEFAULT-VALUE}); accepts 1e7.")
+    String events;
+
+    /** Features. */
+    @Option(names = "--features", defaultValue = "10", paramLabel = "K",
+        description = "Feature columns (default: ${DEFAULT-VALUE}).")
+    int features;
+
+    /** Work folder. */
+    @Option(names = "--work", paramLabel = "DIR",
+        description = "Folder for the generated files and index (default: a temporary folder, removed after).")
+    Path work;
+
+    /** Seed. */
+    @Option(names = "--seed", defaultValue = "1", paramLabel = "N", description = "Seed (default: ${DEFAULT-VALUE}).")
+    long seed;
+
+    long eventCount() {
+      return (long) Double.parseDouble(events);
+    }
+  }
+
+  /** {@code triage bench ingest}. */
+  @Command(name = "ingest", mixinStandardHelpOptions = true,
+      description = "Ingest speed (events/s) and peak heap on generated CSV data.")
+  static final class IngestBench extends Common implements Callable<Integer> {
+    /** Filled by picocli. */
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    /** Threads. */
+    @Option(names = "--threads", defaultValue = "2", paramLabel = "N",
+        description = "Indexing threads (default: ${DEFAULT-VALUE}).")
+    int threads;
+
+    @Override
+    public Integer call() throws Exception {
+      Output o = new Output(spec, false);
+      Path folder = work != null ? work : Files.createTempDirectory("triage-bench");
+      try {
+        long n = eventCount();
+        o.say("generating %d events with %d features in %s ...", n, features, folder);
+        long t0 = System.nanoTime();
+        SampleSpec s = BenchData.write(folder.resolve("data"), n, features, seed);
+        o.say("  generated in %.1f s (%.0f MB of CSV)", (System.nanoTime() - t0) / 1e9,
+            (Files.size(folder.resolve("data/reference.csv")) + Files.size(folder.resolve("data/observed.csv"))) / 1e6);
+        System.gc();
+        try (HeapSampler heap = new HeapSampler()) {
+          IngestReport r = Ingest.run(s, folder.resolve("index"),
+              Ingest.Options.defaults().withReplace(true).withThreads(threads), line -> { });
+          o.say("ingest: %d events in %.2f s = %.0f events/s (%d indexing threads, %d cores, max heap %d MiB)",
+              r.rowsIndexed(), r.seconds(), r.rowsIndexed() / r.seconds(), threads,
+              Runtime.getRuntime().availableProcessors(), Runtime.getRuntime().maxMemory() >> 20);
+          o.say("peak heap in use during ingest: %.0f MiB", heap.peakMiB());
+        }
+      } finally {
+        if (work == null) {
+          deleteTree(folder);
+        }
+      }
+      return ExitCodes.OK;
+    }
+  }
+
+  /** {@code triage bench select}. */
+  @Command(name = "select", mixinStandardHelpOptions = true,
+      description = "Box selection (about 1% of events) plus count and a 100-bin histogram: median and p95 ms.")
+  static final class SelectBench extends Common implements Callable<Integer> {
+    /** Filled by picocli. */
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    /** Repetitions. */
+    @Option(names = "--repeat", defaultValue = "40", paramLabel = "N",
+        description = "Timed repetitions (default: ${DEFAULT-VALUE}), after 5 warm-up runs.")
+    int repeat;
+
+    @Override
+    public Integer call() throws Exception {
+      Output o = new Output(spec, false);
+      Path folder = work != null ? work : Files.createTempDirectory("triage-bench");
+      try {
+        Path index = folder.resolve("index");
+        if (!Files.exists(index.resolve("manifest.json"))) {
+          long n = eventCount();
+          o.say("generating and ingesting %d events with %d features in %s ...", n, features, folder);
+          SampleSpec s = BenchData.write(folder.resolve("data"), n, features, seed);
+          Ingest.run(s, index, Ingest.Options.defaults().withReplace(true), line -> { });
+        }
+        try (EventStore store = EventStore.open(index)) {
+          long total = store.manifest().totalEvents();
+          double[] ms = new double[repeat];
+          long selected = 0;
+          for (int i = -5; i < repeat; i++) {
+            // A box of about 10% × 10% = 1% of the events, moved each time so no result is simply reused.
+            double a = 0.05 + 0.01 * Math.floorMod(i, 40);
+            double b = 0.45 - 0.005 * Math.floorMod(i, 30);
+            Selection box = Selection.all().and(new Selection.Range("x0", a, a + 0.1))
+                .and(new Selection.Range("x1", b, b + 0.1));
+            long t0 = System.nanoTime();
+            List<SampleSums> sums = store.sums(box);
+            List<Histogram> h = store.histogram(box, "x2", 100, 0, 1);
+            double elapsed = (System.nanoTime() - t0) / 1e6;
+            long count = sums.stream().mapToLong(SampleSums::count).sum();
+            if (count != h.stream().mapToLong(Histogram::total).sum()) {
+              throw new IllegalStateException("histogram and count disagree");
+            }
+            if (i >= 0) {
+              ms[i] = elapsed;
+              selected += count;
+            }
+          }
+          Arrays.sort(ms);
+          o.say("select: %d events in the index; box on 2 of %d features selects %.2f%% on average", total,
+              store.manifest().spec().columns().features().size(), 100.0 * selected / repeat / total);
+          o.say("box selection + per-sample count and Σw, Σw² + 100-bin histogram: median %.1f ms, p95 %.1f ms, "
+              + "min %.1f ms (%d runs)", ms[repeat / 2], ms[(int) Math.ceil(0.95 * repeat) - 1], ms[0], repeat);
+        }
+      } finally {
+        if (work == null) {
+          deleteTree(folder);
+        }
+      }
+      return ExitCodes.OK;
+    }
+  }
+
+  static void deleteTree(Path root) throws IOException {
+    if (!Files.exists(root)) {
+      return;
+    }
+    try (Stream<Path> paths = Files.walk(root)) {
+      for (Path p : paths.sorted(Comparator.reverseOrder()).toList()) {
+        Files.deleteIfExists(p);
+      }
+    }
+  }
+}
