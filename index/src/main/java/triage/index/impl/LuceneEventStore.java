@@ -18,7 +18,6 @@ import java.nio.file.StandardOpenOption;
 import java.time.Instant;
 import java.time.temporal.ChronoUnit;
 import java.util.ArrayList;
-import java.util.HashMap;
 import java.util.HashSet;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -27,10 +26,9 @@ import java.util.Optional;
 import java.util.Set;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.stream.IntStream;
-import org.apache.lucene.document.DoubleField;
-import org.apache.lucene.document.IntField;
-import org.apache.lucene.document.KeywordField;
-import org.apache.lucene.document.LongField;
+import org.apache.lucene.document.DoublePoint;
+import org.apache.lucene.document.LongPoint;
+import org.apache.lucene.index.BinaryDocValues;
 import org.apache.lucene.index.CorruptIndexException;
 import org.apache.lucene.index.DirectoryReader;
 import org.apache.lucene.index.DocValues;
@@ -39,28 +37,25 @@ import org.apache.lucene.index.IndexFormatTooOldException;
 import org.apache.lucene.index.IndexNotFoundException;
 import org.apache.lucene.index.IndexWriter;
 import org.apache.lucene.index.IndexWriterConfig;
-import org.apache.lucene.index.LeafReader;
 import org.apache.lucene.index.LeafReaderContext;
-import org.apache.lucene.index.NumericDocValues;
-import org.apache.lucene.index.SortedNumericDocValues;
 import org.apache.lucene.search.BooleanClause;
 import org.apache.lucene.search.BooleanQuery;
 import org.apache.lucene.search.DocIdSetIterator;
 import org.apache.lucene.search.IndexSearcher;
 import org.apache.lucene.search.MatchAllDocsQuery;
+import org.apache.lucene.search.MatchNoDocsQuery;
 import org.apache.lucene.search.Query;
 import org.apache.lucene.search.ScoreDoc;
 import org.apache.lucene.search.ScoreMode;
 import org.apache.lucene.search.Scorer;
+import org.apache.lucene.search.TermInSetQuery;
 import org.apache.lucene.search.TopDocs;
 import org.apache.lucene.search.Weight;
 import org.apache.lucene.store.FSDirectory;
 import org.apache.lucene.store.LockObtainFailedException;
 import org.apache.lucene.util.Bits;
 import org.apache.lucene.util.BytesRef;
-import org.apache.lucene.util.NumericUtils;
 import triage.core.provenance.Fingerprints;
-import triage.core.sample.Role;
 import triage.core.stats.NeumaierSum;
 import triage.index.ColumnKind;
 import triage.index.EventRecord;
@@ -74,10 +69,10 @@ import triage.index.Selection;
 /**
  * An open Lucene event index.
  *
- * <p>Selections become a conjunction of point range queries (Lucene picks points or doc values per clause);
- * sums and histograms read doc values of the matching documents segment by segment, in parallel, and combine the
- * per-segment results in segment order, so results do not depend on the thread count. Ranges on model scores
- * (columns {@code score:VERSION}) are checked per document against the score file.
+ * <p>Selections become a conjunction of point range and term queries on the columns that have them; the other
+ * conditions (sample, block, variation weights, model scores) are checked on each matching event's binary form.
+ * Sums and histograms read the binary doc values of the matching documents segment by segment, in parallel, and
+ * combine the per-segment results in segment order, so results do not depend on the thread count.
  */
 public final class LuceneEventStore implements EventStore {
   /** Prefix of model-score column names in selections. */
@@ -107,6 +102,9 @@ public final class LuceneEventStore implements EventStore {
   /** The manifest (replaced when scores are added). */
   private volatile Manifest manifest;
 
+  /** The binary form of events in this index. */
+  private final Layout layout;
+
   /** Loaded score arrays by version. */
   private final Map<String, double[]> scoreCache = new ConcurrentHashMap<>();
 
@@ -116,6 +114,7 @@ public final class LuceneEventStore implements EventStore {
     this.reader = reader;
     this.searcher = new IndexSearcher(reader);
     this.manifest = manifest;
+    this.layout = new Layout(manifest.spec());
   }
 
   /** See {@link EventStore#open}. */
@@ -205,11 +204,22 @@ public final class LuceneEventStore implements EventStore {
 
   // ---------------------------------------------------------------- selections
 
-  /** The compiled form of a selection: a Lucene query plus ranges on score files. */
-  private record Compiled(Query query, List<double[]> scoreArrays, List<Selection.Range> scoreRanges) {
-    boolean residualHolds(long row) {
-      for (int i = 0; i < scoreRanges.size(); i++) {
-        if (!scoreRanges.get(i).contains(scoreArrays.get(i)[(int) row])) {
+  /** A range checked on the binary form (columns without points) or on a score file (by row). */
+  private record Residual(Layout.Place place, double[] scores, double lo, double hi) {
+    boolean holds(byte[] b, int base) {
+      double x = scores != null ? scores[(int) Layout.getLong(b, base + Layout.ROW)] : Layout.value(b, base, place);
+      return x >= lo && x <= hi;
+    }
+  }
+
+  /** The compiled form of a selection: a Lucene query plus checks on each matching event's binary form. */
+  private record Compiled(Query query, boolean[] samples, List<Residual> residuals) {
+    boolean holds(byte[] b, int base) {
+      if (samples != null && !samples[Layout.getInt(b, base + Layout.SAMPLE)]) {
+        return false;
+      }
+      for (Residual r : residuals) {
+        if (!r.holds(b, base)) {
           return false;
         }
       }
@@ -231,90 +241,119 @@ public final class LuceneEventStore implements EventStore {
     return String.join(", ", manifest.samples().stream().map(Manifest.Sample::name).toList());
   }
 
-  private Manifest.Column column(String name) {
-    Manifest.Column c = manifest.column(name);
-    if (c == null) {
-      List<String> names = new ArrayList<>(manifest.columns().stream().map(Manifest.Column::name).toList());
-      for (Manifest.Model m : manifest.models()) {
-        names.add(SCORE_PREFIX + m.version());
-      }
-      throw new IndexException(dir, "has no column '" + name + "' (it has: " + String.join(", ", names) + ")");
+  /** Every selectable column name, for error messages. */
+  private String columnNames() {
+    List<String> names = new ArrayList<>(manifest.columns().stream().map(Manifest.Column::name).toList());
+    for (var v : manifest.spec().variations()) {
+      names.add(v.up());
+      names.add(v.down());
     }
-    return c;
+    for (Manifest.Model m : manifest.models()) {
+      names.add(SCORE_PREFIX + m.version());
+    }
+    return String.join(", ", names);
+  }
+
+  /** Whether a name refers to a model's scores kept in a score file. */
+  private boolean isScoreFile(String column) {
+    if (!column.startsWith(SCORE_PREFIX) || layout.place(column) != null) {
+      return false;
+    }
+    String version = column.substring(SCORE_PREFIX.length());
+    Manifest.Model m = manifest.model(version);
+    if (m == null) {
+      throw new IndexException(dir, "has no model version '" + version + "' (it has: "
+          + String.join(", ", manifest.models().stream().map(Manifest.Model::version).toList()) + ")");
+    }
+    return !"column".equals(m.source());
+  }
+
+  /** The binary-form place of a column (the external score also answers to score:external). */
+  private Layout.Place place(String column) {
+    Layout.Place p = layout.place(column);
+    if (p == null && column.equals(SCORE_PREFIX + "external") && manifest.spec().columns().score() != null) {
+      p = layout.place(manifest.spec().columns().score());
+    }
+    if (p == null) {
+      throw new IndexException(dir, "has no column '" + column + "' (it has: " + columnNames() + ")");
+    }
+    return p;
+  }
+
+  private String resolveExternal(String column) {
+    return column.equals(SCORE_PREFIX + "external") && manifest.spec().columns().score() != null
+        ? manifest.spec().columns().score() : column;
   }
 
   private Compiled compile(Selection selection) throws IOException {
     BooleanQuery.Builder b = new BooleanQuery.Builder();
     int clauses = 0;
+    boolean[] samples = null;
     if (!selection.samples().isEmpty()) {
-      int[] ordinals = selection.samples().stream().mapToInt(this::sampleOrdinal).sorted().toArray();
-      b.add(IntField.newSetQuery(Fields.SAMPLE, ordinals), BooleanClause.Occur.FILTER);
-      clauses++;
+      samples = new boolean[manifest.samples().size()];
+      for (String name : selection.samples()) {
+        samples[sampleOrdinal(name)] = true;
+      }
     }
-    List<double[]> arrays = new ArrayList<>();
-    List<Selection.Range> scoreRanges = new ArrayList<>();
+    List<Residual> residuals = new ArrayList<>();
     for (Selection.Range r : selection.ranges()) {
-      if (r.column().startsWith(SCORE_PREFIX) && manifest.column(r.column()) == null) {
-        double[] scores = scoresOrColumn(r.column().substring(SCORE_PREFIX.length()));
-        if (scores != null) {
-          arrays.add(scores);
-          scoreRanges.add(r);
-          continue;
-        }
-        b.add(DoubleField.newRangeQuery(Fields.number(manifest.spec().columns().score()), r.lo(), r.hi()),
-            BooleanClause.Occur.FILTER);
-        clauses++;
+      if (isScoreFile(r.column())) {
+        residuals.add(new Residual(null, scores(r.column().substring(SCORE_PREFIX.length())), r.lo(), r.hi()));
         continue;
       }
-      Manifest.Column c = column(r.column());
-      if (!c.kind().numeric()) {
-        throw new IndexException(dir, "column '" + c.name() + "' holds categories: select it with a set of values");
+      String column = resolveExternal(r.column());
+      Layout.Place p = place(column);
+      Manifest.Column c = manifest.column(column);
+      if (p.slot() == Layout.Slot.CODE) {
+        throw new IndexException(dir, "column '" + column + "' holds categories: select it with a set of values");
       }
-      if (c.kind().integral()) {
+      boolean pointed = c != null && (c.kind() == ColumnKind.FEATURE || c.kind() == ColumnKind.SCORE
+          || c.kind() == ColumnKind.ID || c.kind() == ColumnKind.RUN);
+      if (!pointed) {
+        residuals.add(new Residual(p, null, r.lo(), r.hi()));
+        continue;
+      }
+      if (p.slot() == Layout.Slot.LONG) {
         long lo = r.lo() == Double.NEGATIVE_INFINITY ? Long.MIN_VALUE : (long) Math.ceil(r.lo());
         long hi = r.hi() == Double.POSITIVE_INFINITY ? Long.MAX_VALUE : (long) Math.floor(r.hi());
         if (lo > hi) {
-          return new Compiled(new BooleanQuery.Builder().build(), arrays, scoreRanges);
+          return new Compiled(new MatchNoDocsQuery(), samples, residuals);
         }
-        b.add(LongField.newRangeQuery(Fields.integer(c.name()), lo, hi), BooleanClause.Occur.FILTER);
+        b.add(LongPoint.newRangeQuery(Fields.point(column), lo, hi), BooleanClause.Occur.FILTER);
       } else {
-        b.add(DoubleField.newRangeQuery(Fields.number(c.name()), r.lo(), r.hi()), BooleanClause.Occur.FILTER);
+        b.add(DoublePoint.newRangeQuery(Fields.point(column), r.lo(), r.hi()), BooleanClause.Occur.FILTER);
       }
       clauses++;
     }
     for (Selection.CategoryIn in : selection.categories()) {
-      Manifest.Column c = column(in.column());
+      Manifest.Column c = manifest.column(in.column());
+      if (c == null) {
+        throw new IndexException(dir, "has no column '" + in.column() + "' (it has: " + columnNames() + ")");
+      }
       if (c.kind() != ColumnKind.CATEGORY) {
         throw new IndexException(dir, "column '" + c.name() + "' is numeric: select it with a range");
       }
       List<BytesRef> values = in.values().stream().sorted().map(BytesRef::new).toList();
-      b.add(KeywordField.newSetQuery(Fields.category(c.name()), values), BooleanClause.Occur.FILTER);
+      b.add(new TermInSetQuery(Fields.category(c.name()), values), BooleanClause.Occur.FILTER);
       clauses++;
     }
     Query q = clauses == 0 ? new MatchAllDocsQuery() : b.build();
-    return new Compiled(q, arrays, scoreRanges);
+    return new Compiled(q, samples, residuals);
   }
 
-  /** Scores of a file-backed model, or null for the external score column. */
-  private double[] scoresOrColumn(String version) throws IOException {
-    Manifest.Model m = manifest.model(version);
-    if (m == null) {
-      throw new IndexException(dir, "has no model version '" + version + "'");
-    }
-    return "column".equals(m.source()) ? null : scores(version);
-  }
-
-  /** Per-segment work: one call per matching document. */
+  /** Per-event work on the binary form at {@code bytes[base …]}. */
   @FunctionalInterface
-  private interface DocVisitor {
-    void visit(int doc) throws IOException;
+  private interface EventVisitor {
+    void visit(byte[] bytes, int base) throws IOException;
   }
 
-  /** Creates a per-segment visitor and its partial result. */
-  @FunctionalInterface
+  /** Creates a segment's visitor and returns its partial result. */
   private interface LeafTask<R> {
-    R run(LeafReaderContext leaf, DocIdSetIterator matches, NumericDocValues rows, Compiled compiled)
-        throws IOException;
+    /** The segment's partial result, filled by the visitor. */
+    R start(LeafReaderContext leaf) throws IOException;
+
+    /** The visitor that fills the result. */
+    EventVisitor visitor(R partial);
   }
 
   /** Runs a task over every segment in parallel; the results come back in segment order. */
@@ -328,11 +367,28 @@ public final class LuceneEventStore implements EventStore {
     IntStream.range(0, leaves.size()).parallel().forEach(i -> {
       try {
         LeafReaderContext leaf = leaves.get(i);
+        R partial = task.start(leaf);
+        results[i] = partial;
         Scorer scorer = weight.scorer(leaf);
-        DocIdSetIterator it = scorer == null ? DocIdSetIterator.empty() : scorer.iterator();
-        NumericDocValues rows = compiled.scoreRanges().isEmpty() ? null
-            : DocValues.getNumeric(leaf.reader(), Fields.ROW);
-        results[i] = task.run(leaf, it, rows, compiled);
+        if (scorer == null) {
+          return;
+        }
+        DocIdSetIterator it = scorer.iterator();
+        BinaryDocValues events = DocValues.getBinary(leaf.reader(), Fields.EVENT);
+        Bits live = leaf.reader().getLiveDocs();
+        EventVisitor visitor = task.visitor(partial);
+        for (int doc = it.nextDoc(); doc != DocIdSetIterator.NO_MORE_DOCS; doc = it.nextDoc()) {
+          if (live != null && !live.get(doc)) {
+            continue;
+          }
+          if (!events.advanceExact(doc)) {
+            throw new CorruptIndexException("event without its binary form", "segment " + leaf.ord);
+          }
+          BytesRef v = events.binaryValue();
+          if (compiled.holds(v.bytes, v.offset)) {
+            visitor.visit(v.bytes, v.offset);
+          }
+        }
       } catch (IOException e) {
         synchronized (failure) {
           failure[0] = e;
@@ -349,35 +405,6 @@ public final class LuceneEventStore implements EventStore {
       out.add(cast);
     }
     return out;
-  }
-
-  /** Iterates matching live documents that pass the score ranges. */
-  private static void forEach(LeafReaderContext leaf, DocIdSetIterator it, NumericDocValues rows,
-      Compiled compiled, DocVisitor visitor) throws IOException {
-    Bits live = leaf.reader().getLiveDocs();
-    for (int doc = it.nextDoc(); doc != DocIdSetIterator.NO_MORE_DOCS; doc = it.nextDoc()) {
-      if (live != null && !live.get(doc)) {
-        continue;
-      }
-      if (rows != null) {
-        if (!rows.advanceExact(doc)) {
-          throw new CorruptIndexException("document without a row number", "segment " + leaf.ord);
-        }
-        if (!compiled.residualHolds(rows.longValue())) {
-          continue;
-        }
-      }
-      visitor.visit(doc);
-    }
-  }
-
-  private static NumericDocValues singleValued(LeafReader r, String field) throws IOException {
-    SortedNumericDocValues sorted = DocValues.getSortedNumeric(r, field);
-    NumericDocValues single = DocValues.unwrapSingleton(sorted);
-    if (single == null) {
-      throw new CorruptIndexException("field " + field + " has several values per event", r.toString());
-    }
-    return single;
   }
 
   /** Per-sample partial sums of one segment. */
@@ -408,35 +435,28 @@ public final class LuceneEventStore implements EventStore {
   @Override
   public List<SampleSums> sums(Selection selection) throws IOException {
     List<Manifest.Sample> samples = manifest.samples();
-    int nv = manifest.spec().variations().size();
-    List<String> variationNames = manifest.spec().variations().stream().map(v -> v.name()).toList();
-    List<Partial> partials = perLeaf(selection, (leaf, it, rows, compiled) -> {
-      Partial p = new Partial(samples.size(), nv);
-      LeafReader r = leaf.reader();
-      NumericDocValues sample = singleValued(r, Fields.SAMPLE);
-      NumericDocValues weight = DocValues.getNumeric(r, Fields.WEIGHT);
-      NumericDocValues[] ups = new NumericDocValues[nv];
-      NumericDocValues[] downs = new NumericDocValues[nv];
-      for (int j = 0; j < nv; j++) {
-        ups[j] = DocValues.getNumeric(r, Fields.up(variationNames.get(j)));
-        downs[j] = DocValues.getNumeric(r, Fields.down(variationNames.get(j)));
+    int nv = layout.variations;
+    int variationAt = layout.variationAt;
+    List<Partial> partials = perLeaf(selection, new LeafTask<Partial>() {
+      @Override
+      public Partial start(LeafReaderContext leaf) {
+        return new Partial(samples.size(), nv);
       }
-      forEach(leaf, it, rows, compiled, doc -> {
-        int s = sample.advanceExact(doc) ? (int) sample.longValue() : -1;
-        double w = weight.advanceExact(doc) ? Double.longBitsToDouble(weight.longValue()) : Double.NaN;
-        p.counts[s]++;
-        p.sumW[s].add(w);
-        p.sumW2[s].add(w * w);
-        for (int j = 0; j < nv; j++) {
-          if (ups[j].advanceExact(doc)) {
-            p.up[s][j].add(Double.longBitsToDouble(ups[j].longValue()));
+
+      @Override
+      public EventVisitor visitor(Partial p) {
+        return (b, base) -> {
+          int s = Layout.getInt(b, base + Layout.SAMPLE);
+          double w = Layout.getDouble(b, base + Layout.WEIGHT);
+          p.counts[s]++;
+          p.sumW[s].add(w);
+          p.sumW2[s].add(w * w);
+          for (int j = 0; j < nv; j++) {
+            p.up[s][j].add(Layout.getDouble(b, base + variationAt + 16 * j));
+            p.down[s][j].add(Layout.getDouble(b, base + variationAt + 16 * j + 8));
           }
-          if (downs[j].advanceExact(doc)) {
-            p.down[s][j].add(Double.longBitsToDouble(downs[j].longValue()));
-          }
-        }
-      });
-      return p;
+        };
+      }
     });
     List<SampleSums> out = new ArrayList<>();
     for (int s = 0; s < samples.size(); s++) {
@@ -446,56 +466,42 @@ public final class LuceneEventStore implements EventStore {
       boolean varied = samples.get(s).role().weighted();
       double[] upSums = new double[varied ? nv : 0];
       double[] downSums = new double[varied ? nv : 0];
-      NeumaierSum[] up = new NeumaierSum[nv];
-      NeumaierSum[] down = new NeumaierSum[nv];
-      for (int j = 0; j < nv; j++) {
-        up[j] = new NeumaierSum();
-        down[j] = new NeumaierSum();
-      }
       for (Partial p : partials) {
         count += p.counts[s];
         w.combine(p.sumW[s]);
         w2.combine(p.sumW2[s]);
-        for (int j = 0; j < nv; j++) {
-          up[j].combine(p.up[s][j]);
-          down[j].combine(p.down[s][j]);
-        }
       }
       for (int j = 0; j < upSums.length; j++) {
-        upSums[j] = up[j].value();
-        downSums[j] = down[j].value();
+        NeumaierSum up = new NeumaierSum();
+        NeumaierSum down = new NeumaierSum();
+        for (Partial p : partials) {
+          up.combine(p.up[s][j]);
+          down.combine(p.down[s][j]);
+        }
+        upSums[j] = up.value();
+        downSums[j] = down.value();
       }
       out.add(new SampleSums(samples.get(s).name(), count, w.value(), w2.value(), upSums, downSums));
     }
     return out;
   }
 
-  /** Reads a numeric column's value per document. */
+  /** Reads one column's value from an event's binary form. */
   @FunctionalInterface
   private interface ValueReader {
-    /** The value, or NaN when the document has none. */
-    double value(int doc) throws IOException;
+    double value(byte[] b, int base);
   }
 
-  private ValueReader valueReader(LeafReader r, String column, NumericDocValues rows) throws IOException {
-    if (column.startsWith(SCORE_PREFIX) && manifest.column(column) == null) {
-      double[] scores = scoresOrColumn(column.substring(SCORE_PREFIX.length()));
-      if (scores == null) {
-        return valueReader(r, manifest.spec().columns().score(), rows);
-      }
-      NumericDocValues rowValues = DocValues.getNumeric(r, Fields.ROW);
-      return doc -> rowValues.advanceExact(doc) ? scores[(int) rowValues.longValue()] : Double.NaN;
+  private ValueReader valueReader(String column) throws IOException {
+    if (isScoreFile(column)) {
+      double[] scores = scores(column.substring(SCORE_PREFIX.length()));
+      return (b, base) -> scores[(int) Layout.getLong(b, base + Layout.ROW)];
     }
-    Manifest.Column c = column(column);
-    if (!c.kind().numeric()) {
+    Layout.Place p = place(resolveExternal(column));
+    if (p.slot() == Layout.Slot.CODE) {
       throw new IndexException(dir, "column '" + column + "' holds categories, not numbers");
     }
-    if (c.kind().integral()) {
-      NumericDocValues v = singleValued(r, Fields.integer(column));
-      return doc -> v.advanceExact(doc) ? (double) v.longValue() : Double.NaN;
-    }
-    NumericDocValues v = singleValued(r, Fields.number(column));
-    return doc -> v.advanceExact(doc) ? NumericUtils.sortableLongToDouble(v.longValue()) : Double.NaN;
+    return (b, base) -> Layout.value(b, base, p);
   }
 
   /** Per-sample partial histogram of one segment. */
@@ -505,34 +511,38 @@ public final class LuceneEventStore implements EventStore {
   public List<Histogram> histogram(Selection selection, String column, int bins, double lo, double hi)
       throws IOException {
     if (bins < 1 || !(lo < hi) || !Double.isFinite(lo) || !Double.isFinite(hi)) {
-      throw new IllegalArgumentException("histogram needs bins ≥ 1 and a finite range lo < hi, got " + bins + " bins on ["
-          + lo + ", " + hi + ")");
+      throw new IllegalArgumentException("histogram needs bins ≥ 1 and a finite range lo < hi, got " + bins
+          + " bins on [" + lo + ", " + hi + ")");
     }
     List<Manifest.Sample> samples = manifest.samples();
     int ns = samples.size();
-    List<PartialHistogram> partials = perLeaf(selection, (leaf, it, rows, compiled) -> {
-      long[][] counts = new long[ns][bins + 2];
-      NeumaierSum[][] sw = new NeumaierSum[ns][bins + 2];
-      NeumaierSum[][] sw2 = new NeumaierSum[ns][bins + 2];
-      for (int s = 0; s < ns; s++) {
-        for (int i = 0; i < bins + 2; i++) {
-          sw[s][i] = new NeumaierSum();
-          sw2[s][i] = new NeumaierSum();
+    ValueReader values = valueReader(column);
+    List<PartialHistogram> partials = perLeaf(selection, new LeafTask<PartialHistogram>() {
+      @Override
+      public PartialHistogram start(LeafReaderContext leaf) {
+        long[][] counts = new long[ns][bins + 2];
+        NeumaierSum[][] sw = new NeumaierSum[ns][bins + 2];
+        NeumaierSum[][] sw2 = new NeumaierSum[ns][bins + 2];
+        for (int s = 0; s < ns; s++) {
+          for (int i = 0; i < bins + 2; i++) {
+            sw[s][i] = new NeumaierSum();
+            sw2[s][i] = new NeumaierSum();
+          }
         }
+        return new PartialHistogram(counts, sw, sw2);
       }
-      LeafReader r = leaf.reader();
-      NumericDocValues sample = singleValued(r, Fields.SAMPLE);
-      NumericDocValues weight = DocValues.getNumeric(r, Fields.WEIGHT);
-      ValueReader values = valueReader(r, column, rows);
-      forEach(leaf, it, rows, compiled, doc -> {
-        int s = sample.advanceExact(doc) ? (int) sample.longValue() : -1;
-        double w = weight.advanceExact(doc) ? Double.longBitsToDouble(weight.longValue()) : Double.NaN;
-        int bin = Histogram.binOf(values.value(doc), bins, lo, hi);
-        counts[s][bin]++;
-        sw[s][bin].add(w);
-        sw2[s][bin].add(w * w);
-      });
-      return new PartialHistogram(counts, sw, sw2);
+
+      @Override
+      public EventVisitor visitor(PartialHistogram p) {
+        return (b, base) -> {
+          int s = Layout.getInt(b, base + Layout.SAMPLE);
+          double w = Layout.getDouble(b, base + Layout.WEIGHT);
+          int bin = Histogram.binOf(values.value(b, base), bins, lo, hi);
+          p.counts()[s][bin]++;
+          p.sumW()[s][bin].add(w);
+          p.sumW2()[s][bin].add(w * w);
+        };
+      }
     });
     List<Histogram> out = new ArrayList<>();
     for (int s = 0; s < ns; s++) {
@@ -541,14 +551,14 @@ public final class LuceneEventStore implements EventStore {
       double[] sw2 = new double[bins + 2];
       for (int i = 0; i < bins + 2; i++) {
         NeumaierSum a = new NeumaierSum();
-        NeumaierSum b = new NeumaierSum();
+        NeumaierSum c = new NeumaierSum();
         for (PartialHistogram p : partials) {
           counts[i] += p.counts()[s][i];
           a.combine(p.sumW()[s][i]);
-          b.combine(p.sumW2()[s][i]);
+          c.combine(p.sumW2()[s][i]);
         }
         sw[i] = a.value();
-        sw2[i] = b.value();
+        sw2[i] = c.value();
       }
       out.add(new Histogram(samples.get(s).name(), column, bins, lo, hi, counts, sw, sw2));
     }
@@ -560,119 +570,98 @@ public final class LuceneEventStore implements EventStore {
   @Override
   public Optional<EventRecord> event(String sample, long id) throws IOException {
     int ordinal = sampleOrdinal(sample);
-    String idColumn = manifest.spec().columns().id();
-    Query q = new BooleanQuery.Builder()
-        .add(IntField.newExactQuery(Fields.SAMPLE, ordinal), BooleanClause.Occur.FILTER)
-        .add(LongField.newExactQuery(Fields.integer(idColumn), id), BooleanClause.Occur.FILTER)
-        .build();
-    TopDocs top = searcher.search(q, 2);
-    if (top.scoreDocs.length == 0) {
+    var c = manifest.spec().columns();
+    TopDocs top = searcher.search(LongPoint.newExactQuery(Fields.point(c.id()), id), 1000);
+    byte[] found = null;
+    for (ScoreDoc hit : top.scoreDocs) {
+      BytesRef bytes = searcher.storedFields().document(hit.doc).getBinaryValue(Fields.EVENT);
+      byte[] b = BytesRef.deepCopyOf(bytes).bytes;
+      if (Layout.getInt(b, Layout.SAMPLE) == ordinal) {
+        if (found != null) {
+          throw new IndexException(dir, "is damaged: sample '" + sample + "' holds id " + id + " twice");
+        }
+        found = b;
+      }
+    }
+    if (found == null) {
       return Optional.empty();
     }
-    if (top.scoreDocs.length > 1) {
-      throw new IndexException(dir, "is damaged: sample '" + sample + "' holds id " + id + " twice");
-    }
-    ScoreDoc hit = top.scoreDocs[0];
-    BytesRef bytes = searcher.storedFields().document(hit.doc).getBinaryValue(Fields.EVENT);
     Manifest.Sample facts = manifest.samples().get(ordinal);
-    var c = manifest.spec().columns();
-    int nv = facts.role().weighted() ? manifest.spec().variations().size() : 0;
-    EventCodec.Decoded d = EventCodec.decode(BytesRef.deepCopyOf(bytes).bytes, c.features().size(), nv,
-        c.score() != null, c.categories().size());
     Map<String, Double> numbers = new LinkedHashMap<>();
-    for (int k = 0; k < c.features().size(); k++) {
-      numbers.put(c.features().get(k), d.features()[k]);
+    for (Manifest.Column col : manifest.columns()) {
+      if (col.kind() != ColumnKind.CATEGORY) {
+        numbers.put(col.name(), Layout.value(found, 0, layout.place(col.name())));
+      }
     }
-    numbers.put(c.id(), (double) d.id());
-    if (c.run() != null) {
-      numbers.put(c.run(), (double) d.run());
+    if (facts.role().weighted()) {
+      for (var v : manifest.spec().variations()) {
+        numbers.put(v.up(), Layout.value(found, 0, layout.place(v.up())));
+        numbers.put(v.down(), Layout.value(found, 0, layout.place(v.down())));
+      }
     }
-    if (c.block() != null) {
-      numbers.put(c.block(), (double) d.block());
-    }
-    if (c.score() != null) {
-      numbers.put(c.score(), d.score());
-    }
-    for (int j = 0; j < nv; j++) {
-      var v = manifest.spec().variations().get(j);
-      numbers.put(v.up(), d.ups()[j]);
-      numbers.put(v.down(), d.downs()[j]);
-    }
-    NumericDocValues rowValues = DocValues.getNumeric(leafOf(hit.doc).reader(), Fields.ROW);
-    int local = hit.doc - leafOf(hit.doc).docBase;
-    long row = rowValues.advanceExact(local) ? rowValues.longValue() : -1;
+    long row = Layout.getLong(found, Layout.ROW);
     for (Manifest.Model m : manifest.models()) {
       if (!"column".equals(m.source())) {
         numbers.put(SCORE_PREFIX + m.version(), scores(m.version())[(int) row]);
       }
     }
     Map<String, String> categories = new LinkedHashMap<>();
-    for (int k = 0; k < c.categories().size(); k++) {
-      categories.put(c.categories().get(k), d.categories()[k]);
+    for (String k : c.categories()) {
+      int code = (int) Layout.value(found, 0, layout.place(k));
+      categories.put(k, facts.categories().get(k).get(code));
     }
-    return Optional.of(new EventRecord(sample, row, d.line(), d.weight(), numbers, categories));
-  }
-
-  private LeafReaderContext leafOf(int doc) {
-    List<LeafReaderContext> leaves = reader.leaves();
-    return leaves.get(org.apache.lucene.index.ReaderUtil.subIndex(doc, leaves));
+    return Optional.of(new EventRecord(sample, row, Layout.getLong(found, Layout.LINE),
+        Layout.getDouble(found, Layout.WEIGHT), numbers, categories));
   }
 
   @Override
   public double[][] columns(String sample, List<String> columns) throws IOException {
-    int ordinal = sampleOrdinal(sample);
-    Manifest.Sample facts = manifest.samples().get(ordinal);
+    Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     if (facts.events() > Integer.MAX_VALUE - 8) {
       throw new IndexException(dir, "sample '" + sample + "' has more events than one array can hold");
     }
     int n = (int) facts.events();
     long first = facts.firstRow();
     double[][] out = new double[columns.size()][n];
-    for (String c : columns) {
-      if (!(c.startsWith(SCORE_PREFIX) && manifest.column(c) == null)) {
-        column(c);
-      }
+    ValueReader[] readers = new ValueReader[columns.size()];
+    for (int k = 0; k < readers.length; k++) {
+      readers[k] = valueReader(columns.get(k));
     }
-    Selection only = Selection.all().inSamples(Set.of(sample));
-    perLeaf(only, (leaf, it, rows, compiled) -> {
-      LeafReader r = leaf.reader();
-      NumericDocValues rowValues = DocValues.getNumeric(r, Fields.ROW);
-      ValueReader[] readers = new ValueReader[columns.size()];
-      for (int k = 0; k < readers.length; k++) {
-        readers[k] = valueReader(r, columns.get(k), rowValues);
+    perLeaf(Selection.all().inSamples(Set.of(sample)), new LeafTask<Object>() {
+      @Override
+      public Object start(LeafReaderContext leaf) {
+        return Boolean.TRUE;
       }
-      NumericDocValues ownRows = DocValues.getNumeric(r, Fields.ROW);
-      forEach(leaf, it, rows, compiled, doc -> {
-        if (!ownRows.advanceExact(doc)) {
-          throw new CorruptIndexException("document without a row number", "segment " + leaf.ord);
-        }
-        int i = (int) (ownRows.longValue() - first);
-        for (int k = 0; k < readers.length; k++) {
-          out[k][i] = readers[k].value(doc);
-        }
-      });
-      return null;
+
+      @Override
+      public EventVisitor visitor(Object unused) {
+        return (b, base) -> {
+          int i = (int) (Layout.getLong(b, base + Layout.ROW) - first);
+          for (int k = 0; k < readers.length; k++) {
+            out[k][i] = readers[k].value(b, base);
+          }
+        };
+      }
     });
     return out;
   }
 
   @Override
   public double[] weights(String sample) throws IOException {
-    int ordinal = sampleOrdinal(sample);
-    Manifest.Sample facts = manifest.samples().get(ordinal);
-    int n = (int) facts.events();
+    Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     long first = facts.firstRow();
-    double[] out = new double[n];
-    perLeaf(Selection.all().inSamples(Set.of(sample)), (leaf, it, rows, compiled) -> {
-      NumericDocValues rowValues = DocValues.getNumeric(leaf.reader(), Fields.ROW);
-      NumericDocValues weight = DocValues.getNumeric(leaf.reader(), Fields.WEIGHT);
-      forEach(leaf, it, rows, compiled, doc -> {
-        if (!rowValues.advanceExact(doc) || !weight.advanceExact(doc)) {
-          throw new CorruptIndexException("document without row or weight", "segment " + leaf.ord);
-        }
-        out[(int) (rowValues.longValue() - first)] = Double.longBitsToDouble(weight.longValue());
-      });
-      return null;
+    double[] out = new double[(int) facts.events()];
+    perLeaf(Selection.all().inSamples(Set.of(sample)), new LeafTask<Object>() {
+      @Override
+      public Object start(LeafReaderContext leaf) {
+        return Boolean.TRUE;
+      }
+
+      @Override
+      public EventVisitor visitor(Object unused) {
+        return (b, base) -> out[(int) (Layout.getLong(b, base + Layout.ROW) - first)] =
+            Layout.getDouble(b, base + Layout.WEIGHT);
+      }
     });
     return out;
   }
@@ -798,14 +787,5 @@ public final class LuceneEventStore implements EventStore {
         }
       }
     }
-  }
-
-  /** Roles by sample name, for callers that format summaries. */
-  public Map<String, Role> roles() {
-    Map<String, Role> out = new HashMap<>();
-    for (Manifest.Sample s : manifest.samples()) {
-      out.put(s.name(), s.role());
-    }
-    return out;
   }
 }

@@ -22,20 +22,18 @@ import java.util.function.Consumer;
 import org.apache.commons.csv.CSVFormat;
 import org.apache.commons.csv.CSVPrinter;
 import org.apache.lucene.document.Document;
-import org.apache.lucene.document.DoubleDocValuesField;
-import org.apache.lucene.document.DoubleField;
+import org.apache.lucene.document.BinaryDocValuesField;
+import org.apache.lucene.document.DoublePoint;
 import org.apache.lucene.document.Field;
-import org.apache.lucene.document.IntField;
-import org.apache.lucene.document.KeywordField;
-import org.apache.lucene.document.LongField;
-import org.apache.lucene.document.NumericDocValuesField;
+import org.apache.lucene.document.LongPoint;
 import org.apache.lucene.document.StoredField;
+import org.apache.lucene.document.StringField;
 import org.apache.lucene.index.DirectoryReader;
 import org.apache.lucene.index.IndexWriter;
 import org.apache.lucene.index.IndexWriterConfig;
-import org.apache.lucene.store.ByteBuffersDataOutput;
 import org.apache.lucene.store.FSDirectory;
 import org.apache.lucene.store.LockObtainFailedException;
+import org.apache.lucene.util.BytesRef;
 import triage.core.provenance.ToolVersion;
 import triage.core.sample.BadRowPolicy;
 import triage.core.sample.Columns;
@@ -46,7 +44,6 @@ import triage.core.sample.ReadResult;
 import triage.core.sample.RejectSink;
 import triage.core.sample.SampleSource;
 import triage.core.sample.SampleSpec;
-import triage.core.sample.Variation;
 import triage.core.stats.NeumaierSum;
 import triage.index.ColumnKind;
 import triage.index.Ingest;
@@ -278,8 +275,12 @@ public final class LuceneIngest {
     /** The next index-wide row number. */
     long nextRow;
 
+    /** The binary form of events. */
+    private final Layout layout;
+
     Writing(SampleSpec spec, IndexWriter writer, int threads) {
       this.spec = spec;
+      this.layout = new Layout(spec);
       this.writer = writer;
       this.pool = Executors.newFixedThreadPool(threads, r -> {
         Thread t = new Thread(r, "triage-index");
@@ -356,39 +357,31 @@ public final class LuceneIngest {
       }
     }
 
-    private List<Document> documents(int ordinal, EventBatch b, long firstRow) throws IOException {
+    private List<Document> documents(int ordinal, EventBatch b, long firstRow) {
       Columns c = spec.columns();
       List<String> features = c.features();
       List<String> categories = c.categories();
-      List<Variation> variations = spec.variations();
-      ByteBuffersDataOutput out = new ByteBuffersDataOutput();
       List<Document> docs = new ArrayList<>(b.size());
       for (int i = 0; i < b.size(); i++) {
         Document d = new Document();
-        d.add(new IntField(Fields.SAMPLE, ordinal, Field.Store.NO));
-        d.add(new NumericDocValuesField(Fields.ROW, firstRow + i));
-        d.add(new DoubleDocValuesField(Fields.WEIGHT, b.weight(i)));
         for (int k = 0; k < features.size(); k++) {
-          d.add(new DoubleField(Fields.number(features.get(k)), b.feature(i, k), Field.Store.NO));
+          d.add(new DoublePoint(Fields.point(features.get(k)), b.feature(i, k)));
         }
-        for (int j = 0; j < b.variationCount(); j++) {
-          d.add(new DoubleDocValuesField(Fields.up(variations.get(j).name()), b.up(i, j)));
-          d.add(new DoubleDocValuesField(Fields.down(variations.get(j).name()), b.down(i, j)));
-        }
-        d.add(new LongField(Fields.integer(c.id()), b.id(i), Field.Store.NO));
+        d.add(new LongPoint(Fields.point(c.id()), b.id(i)));
         if (b.hasRun()) {
-          d.add(new LongField(Fields.integer(c.run()), b.run(i), Field.Store.NO));
-        }
-        if (b.hasBlock()) {
-          d.add(new LongField(Fields.integer(c.block()), b.block(i), Field.Store.NO));
-        }
-        for (int k = 0; k < categories.size(); k++) {
-          d.add(new KeywordField(Fields.category(categories.get(k)), b.category(i, k), Field.Store.NO));
+          d.add(new LongPoint(Fields.point(c.run()), b.run(i)));
         }
         if (b.hasScore()) {
-          d.add(new DoubleField(Fields.number(c.score()), b.score(i), Field.Store.NO));
+          d.add(new DoublePoint(Fields.point(c.score()), b.score(i)));
         }
-        d.add(new StoredField(Fields.EVENT, EventCodec.encode(b, i, out)));
+        for (int k = 0; k < categories.size(); k++) {
+          d.add(new StringField(Fields.category(categories.get(k)), b.category(i, k), Field.Store.NO));
+        }
+        byte[] blob = new byte[layout.length];
+        layout.encode(b, i, ordinal, firstRow + i, blob);
+        BytesRef ref = new BytesRef(blob);
+        d.add(new BinaryDocValuesField(Fields.EVENT, ref));
+        d.add(new StoredField(Fields.EVENT, ref));
         docs.add(d);
       }
       return docs;

@@ -77,13 +77,11 @@ public final class EventFileReader {
     char delimiter = delimiterFor(file);
     MessageDigest digest = Fingerprints.sha256();
     boolean compressed;
+    try (InputStream head = Files.newInputStream(file)) {
+      compressed = head.read() == 0x1f && head.read() == 0x8b;
+    }
     try (InputStream raw = new DigestInputStream(new BufferedInputStream(Files.newInputStream(file), 1 << 16),
         digest)) {
-      raw.mark(2);
-      int b0 = raw.read();
-      int b1 = raw.read();
-      raw.reset();
-      compressed = b0 == 0x1f && b1 == 0x8b;
       // The parser closes what it reads; keep the digesting stream open so the rest can be drained below.
       InputStream shielded = new java.io.FilterInputStream(raw) {
         @Override

@@ -7,7 +7,6 @@ import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.databind.DeserializationFeature;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.SerializationFeature;
-import com.fasterxml.jackson.databind.exc.UnrecognizedPropertyException;
 import java.io.IOException;
 import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
@@ -34,7 +33,7 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
 
   /** The mapper used to read and write specs; strict about unknown fields. */
   private static final ObjectMapper MAPPER = new ObjectMapper()
-      .enable(DeserializationFeature.FAIL_ON_UNKNOWN_PROPERTIES)
+      .addHandler(new UnknownFieldHandler())
       .enable(DeserializationFeature.FAIL_ON_NULL_FOR_PRIMITIVES)
       .enable(SerializationFeature.INDENT_OUTPUT);
 
@@ -128,6 +127,67 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
     return format;
   }
 
+  /** An unknown field, with the place of its value (Jackson's own exception points past the enclosing object). */
+  private static final class UnknownField extends RuntimeException {
+    private static final long serialVersionUID = 1L;
+
+    /** Line of the field's value. */
+    final int line;
+
+    /** Column of the field's value. */
+    final int column;
+
+    /** The unknown field's name. */
+    final String field;
+
+    UnknownField(String field, String message, int line, int column) {
+      super(message);
+      this.field = field;
+      this.line = line;
+      this.column = column;
+    }
+  }
+
+  /**
+   * The 1-based line and column of the first {@code "key":} in JSON text, or {0, 0}. Used where Jackson has
+   * buffered the input (record creators) and lost the place.
+   */
+  static long[] locateKey(String text, String key) {
+    java.util.regex.Matcher m = java.util.regex.Pattern.compile("\"" + java.util.regex.Pattern.quote(key)
+        + "\"\\s*:").matcher(text);
+    if (!m.find()) {
+      return new long[] {0, 0};
+    }
+    long line = 1;
+    int lineStart = 0;
+    for (int i = 0; i < m.start(); i++) {
+      if (text.charAt(i) == '\n') {
+        line++;
+        lineStart = i + 1;
+      }
+    }
+    return new long[] {line, m.start() - lineStart + 1};
+  }
+
+  /** Turns an unknown field into {@link UnknownField} while the parser still stands on it. */
+  private static final class UnknownFieldHandler extends com.fasterxml.jackson.databind.deser.DeserializationProblemHandler {
+    @Override
+    public boolean handleUnknownProperty(com.fasterxml.jackson.databind.DeserializationContext ctxt,
+        com.fasterxml.jackson.core.JsonParser p, com.fasterxml.jackson.databind.JsonDeserializer<?> deserializer,
+        Object beanOrClass, String propertyName) {
+      JsonLocation at = p.currentTokenLocation();
+      List<String> known = new ArrayList<>();
+      java.util.Collection<Object> names = deserializer.getKnownPropertyNames();
+      if (names != null) {
+        for (Object n : names) {
+          known.add(String.valueOf(n));
+        }
+      }
+      throw new UnknownField(propertyName, "unknown field '" + propertyName + "'" + (known.isEmpty() ? ""
+          : ", expected one of " + String.join(", ", known)), at.getLineNr(), at.getColumnNr());
+    }
+  }
+
   /**
    * Reads and checks a spec file; relative sample files are resolved against the spec's folder.
    *
@@ -160,11 +220,15 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
         throw new InputException(origin, 1, 1, "empty sample spec: expected a JSON object", null);
       }
       return spec;
-    } catch (UnrecognizedPropertyException e) {
-      JsonLocation at = e.getLocation();
-      throw new InputException(origin, at == null ? 0 : at.getLineNr(), at == null ? 0 : at.getColumnNr(),
-          "unknown field '" + e.getPropertyName() + "', expected one of " + e.getKnownPropertyIds(), null);
     } catch (JsonProcessingException e) {
+      Throwable cause = e;
+      while (cause != null && !(cause instanceof UnknownField)) {
+        cause = cause.getCause();
+      }
+      if (cause instanceof UnknownField u) {
+        long[] place = u.line > 0 ? new long[] {u.line, u.column} : locateKey(text, u.field);
+        throw new InputException(origin, place[0], place[1], u.getMessage(), null);
+      }
       JsonLocation at = e.getLocation();
       String why = e.getOriginalMessage();
       Throwable root = e;

@@ -1,0 +1,277 @@
+package triage.core.sample;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.io.IOException;
+import java.io.OutputStream;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.zip.GZIPOutputStream;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import triage.core.provenance.Fingerprints;
+
+/** One test per kind of bad input, each checking that the message names the file, line and column. */
+class EventFileReaderTest {
+  @TempDir
+  Path dir;
+
+  private static final String HEADER = "event,run,m,pt,sector,w,w_up,w_down";
+
+  private SampleSpec spec(Path file, Role role) {
+    Columns columns = new Columns(List.of("m", "pt"), "event", "run", null, List.of("sector"), null);
+    return new SampleSpec(SampleSpec.FORMAT, columns, List.of(new Variation("scale", "w_up", "w_down")),
+        List.of(new SampleSource("s", role, file.toString(), role.weighted() ? "w" : null)));
+  }
+
+  private Path write(String name, String text) throws IOException {
+    Path f = dir.resolve(name);
+    Files.writeString(f, text);
+    return f;
+  }
+
+  /** Collected output of one read. */
+  private static final class Collected {
+    final List<Double> m = new ArrayList<>();
+    final List<Double> w = new ArrayList<>();
+    final List<Long> ids = new ArrayList<>();
+    final List<Long> lines = new ArrayList<>();
+    final List<String> sectors = new ArrayList<>();
+    final List<RowProblem> rejected = new ArrayList<>();
+    ReadResult result;
+  }
+
+  private Collected read(Path file, Role role, ReadOptions options) throws IOException {
+    Collected c = new Collected();
+    SampleSpec spec = spec(file, role);
+    c.result = EventFileReader.read(spec, spec.samples().get(0), options, b -> {
+      for (int i = 0; i < b.size(); i++) {
+        c.m.add(b.feature(i, 0));
+        c.w.add(b.weight(i));
+        c.ids.add(b.id(i));
+        c.lines.add(b.line(i));
+        c.sectors.add(b.category(i, 0));
+      }
+    }, (p, fields) -> c.rejected.add(p));
+    return c;
+  }
+
+  private InputException fails(String text, Role role) throws IOException {
+    Path f = write("bad.csv", text);
+    return assertThrows(InputException.class, () -> read(f, role, ReadOptions.strict().withBatchSize(2)));
+  }
+
+  private static void assertPlace(InputException e, String file, long line, long column) {
+    assertEquals(line, e.line(), e.getMessage());
+    assertEquals(column, e.column(), e.getMessage());
+    String place = column > 0 ? file + ":" + line + ":" + column + ": " : file + ":" + line + ": ";
+    assertTrue(e.getMessage().contains(place), "expected '" + place + "' in: " + e.getMessage());
+  }
+
+  @Test
+  void readsGoodRowsWithLinesAndSums() throws IOException {
+    Path f = write("good.csv", HEADER + "\n1,7,10.5,3,A,0.5,0.6,0.4\n2,7,11.5,4,\"B\",1.5,1.6,1.4\n"
+        + "3,8,\"12.5\",5,A,2.0,2.1,1.9\n");
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict().withBatchSize(2));
+    assertEquals(List.of(10.5, 11.5, 12.5), c.m);
+    assertEquals(List.of(0.5, 1.5, 2.0), c.w);
+    assertEquals(List.of(2L, 3L, 4L), c.lines);
+    assertEquals(List.of("A", "B", "A"), c.sectors);
+    assertEquals(3, c.result.rowsRead());
+    assertEquals(4.0, c.result.sumOfWeights());
+    assertEquals(0.25 + 2.25 + 4.0, c.result.sumOfSquaredWeights());
+    assertEquals(Fingerprints.sha256(f), c.result.sha256());
+    // Weighted mean of m: (0.5·10.5 + 1.5·11.5 + 2·12.5)/4, by hand.
+    assertEquals((0.5 * 10.5 + 1.5 * 11.5 + 2 * 12.5) / 4, c.result.featureMeans()[0], 1e-15);
+  }
+
+  @Test
+  void observedEventsWeighOneAndIgnoreVariationColumns() throws IOException {
+    Path f = write("obs.csv", "event,run,m,pt,sector,extra\n1,7,10.5,3,A,x\n");
+    Collected c = read(f, Role.OBSERVED, ReadOptions.strict());
+    assertEquals(List.of(1.0), c.w);
+    assertEquals(List.of("extra"), c.result.ignoredColumns());
+  }
+
+  @Test
+  void readsGzipAndTsvAndCountsTheCompressedBytes() throws IOException {
+    Path f = dir.resolve("good.tsv.gz");
+    try (OutputStream out = new GZIPOutputStream(Files.newOutputStream(f))) {
+      out.write((HEADER.replace(',', '\t') + "\n1\t7\t10.5\t3\tA\t0.5\t0.6\t0.4\n").getBytes(StandardCharsets.UTF_8));
+    }
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict());
+    assertEquals(List.of(10.5), c.m);
+    assertTrue(c.result.compressed());
+    assertEquals('\t', c.result.delimiter());
+    assertEquals(Fingerprints.sha256(f), c.result.sha256());
+  }
+
+  @Test
+  void missingFile() {
+    Path f = dir.resolve("nothere.csv");
+    InputException e = assertThrows(InputException.class, () -> read(f, Role.REFERENCE, ReadOptions.strict()));
+    assertTrue(e.getMessage().contains("nothere.csv: file not found"), e.getMessage());
+  }
+
+  @Test
+  void emptyFile() throws IOException {
+    InputException e = fails("", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 1, 0);
+    assertTrue(e.getMessage().contains("empty file"), e.getMessage());
+  }
+
+  @Test
+  void headerOnly() throws IOException {
+    InputException e = fails(HEADER + "\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 0);
+    assertTrue(e.getMessage().contains("no events after the header"), e.getMessage());
+  }
+
+  @Test
+  void headerLacksADeclaredColumn() throws IOException {
+    InputException e = fails("event,run,m,sector,w,w_up,w_down\n1,7,10.5,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 1, 0);
+    assertTrue(e.getMessage().contains("header lacks declared column pt"), e.getMessage());
+  }
+
+  @Test
+  void headerNamesAColumnTwice() throws IOException {
+    InputException e = fails("event,run,m,pt,m,sector,w,w_up,w_down\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 1, 5);
+  }
+
+  @Test
+  void wrongFieldCount() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,10.5,3,A,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 3, 0);
+    assertTrue(e.getMessage().contains("expected 8 fields as in the header, found 7"), e.getMessage());
+  }
+
+  @Test
+  void numericParseError() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,ten,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 3, 3);
+    assertTrue(e.getMessage().contains("column 'm': found 'ten', expected a decimal number"), e.getMessage());
+  }
+
+  @Test
+  void javaSuffixesAreNotNumbers() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,10.5f,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 3);
+  }
+
+  @Test
+  void nanIsRefused() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,10.5,NaN,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 4);
+    assertTrue(e.getMessage().contains("found 'NaN', expected a finite number"), e.getMessage());
+  }
+
+  @Test
+  void infinityIsRefused() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,-Infinity,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 3);
+    assertTrue(e.getMessage().contains("expected a finite number"), e.getMessage());
+    InputException overflow = fails(HEADER + "\n1,7,1e999,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(overflow, "bad.csv", 2, 3);
+  }
+
+  @Test
+  void emptyValue() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,10.5,3,,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 5);
+    assertTrue(e.getMessage().contains("expected a category value"), e.getMessage());
+  }
+
+  @Test
+  void nonIntegerId() throws IOException {
+    InputException e = fails(HEADER + "\n1.5,7,10.5,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 1);
+    assertTrue(e.getMessage().contains("expected a whole number"), e.getMessage());
+  }
+
+  @Test
+  void duplicateEventId() throws IOException {
+    InputException e = fails(HEADER + "\n5,7,10.5,3,A,1,1,1\n6,7,10.5,3,A,1,1,1\n5,7,1,3,A,1,1,1\n",
+        Role.REFERENCE);
+    assertPlace(e, "bad.csv", 4, 1);
+    assertTrue(e.getMessage().contains("first seen on line 2"), e.getMessage());
+  }
+
+  @Test
+  void zeroWeightIsRefusedByDefault() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,10.5,3,A,0,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 6);
+    assertTrue(e.getMessage().contains("--allow-negative-weights"), e.getMessage());
+  }
+
+  @Test
+  void negativeWeightIsRefusedByDefaultAndCountedWhenAllowed() throws IOException {
+    String text = HEADER + "\n1,7,10.5,3,A,-0.5,-0.4,-0.6\n2,7,10.5,3,A,0,0,0\n3,7,10.5,3,A,2,2,2\n";
+    InputException e = fails(text, Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 6);
+    Path f = write("neg.csv", text);
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict().with(WeightPolicy.ANY_FINITE));
+    assertEquals(3, c.result.rowsAccepted());
+    assertEquals(1, c.result.negativeWeights());
+    assertEquals(1, c.result.zeroWeights());
+    assertEquals(1.5, c.result.sumOfWeights());
+  }
+
+  @Test
+  void quotedFieldWithNewlineKeepsLineNumbers() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,10.5,3,\"A\nB\",1,1,1\n2,7,x,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 4, 3);
+  }
+
+  @Test
+  void unterminatedQuoteIsReportedWithItsLine() throws IOException {
+    InputException e = fails(HEADER + "\n1,7,10.5,3,\"A,1,1,1\n", Role.REFERENCE);
+    assertTrue(e.getMessage().contains("bad.csv:2"), e.getMessage());
+  }
+
+  @Test
+  void skipPolicyReconcilesAndReportsEveryRejectedRow() throws IOException {
+    String text = HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,x,3,A,1,1,1\n3,7,1,3,A,1,1\n1,7,1,3,A,1,1,1\n"
+        + "4,7,1,NaN,A,1,1,1\n\n5,7,1,2,B,1,1,1\n";
+    Path f = write("mixed.csv", text);
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict().with(BadRowPolicy.SKIP).withBatchSize(2));
+    assertEquals(7, c.result.rowsRead());
+    assertEquals(2, c.result.rowsAccepted());
+    assertEquals(5, c.result.rowsRejected());
+    assertEquals(List.of(1L, 5L), c.ids);
+    assertEquals(List.of(2L, 8L), c.lines);
+    assertEquals(List.of(3L, 4L, 5L, 6L, 7L), c.rejected.stream().map(RowProblem::line).toList());
+    assertEquals(java.util.Map.of("not-a-number", 1L, "field-count", 2L, "duplicate-id", 1L, "not-finite", 1L),
+        c.result.rejectedByKind());
+  }
+
+  @Test
+  void damagedGzip() throws IOException {
+    Path f = dir.resolve("broken.csv.gz");
+    byte[] good;
+    java.io.ByteArrayOutputStream bytes = new java.io.ByteArrayOutputStream();
+    try (OutputStream out = new GZIPOutputStream(bytes)) {
+      out.write((HEADER + "\n1,7,10.5,3,A,0.5,0.6,0.4\n".repeat(1)).getBytes(StandardCharsets.UTF_8));
+    }
+    good = bytes.toByteArray();
+    Files.write(f, java.util.Arrays.copyOf(good, good.length / 2));
+    InputException e = assertThrows(InputException.class, () -> read(f, Role.REFERENCE, ReadOptions.strict()));
+    assertTrue(e.getMessage().contains("broken.csv.gz"), e.getMessage());
+  }
+
+  @Test
+  void strictNumberParsing() {
+    assertEquals(1.5, EventFileReader.parseNumber(" 1.5 "));
+    assertEquals(-3e-2, EventFileReader.parseNumber("-3e-2"));
+    assertEquals(7.0, EventFileReader.parseNumber("7."));
+    assertTrue(Double.isNaN(EventFileReader.parseNumber("0x1p3")));
+    assertTrue(Double.isNaN(EventFileReader.parseNumber("2d")));
+    assertEquals(Double.POSITIVE_INFINITY, EventFileReader.parseNumber("inf"));
+  }
+}
