@@ -1,0 +1,145 @@
+package triage.shell;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import java.io.IOException;
+import java.io.PrintWriter;
+import java.io.StringWriter;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/** Runs commands with captured output and checks exit codes, messages and the one-JSON-object contract. */
+class CliTest {
+  /** Strict: one JSON object and nothing after it. */
+  static final ObjectMapper JSON = new ObjectMapper()
+      .enable(com.fasterxml.jackson.databind.DeserializationFeature.FAIL_ON_TRAILING_TOKENS);
+
+  @TempDir
+  Path dir;
+
+  /** The result of one run. */
+  record Run(int code, String out, String err) {}
+
+  static Run run(String... args) {
+    StringWriter out = new StringWriter();
+    StringWriter err = new StringWriter();
+    int code = Main.run(args, new PrintWriter(out, true), new PrintWriter(err, true));
+    return new Run(code, out.toString(), err.toString());
+  }
+
+  private Path writeSamples() throws IOException {
+    Files.writeString(dir.resolve("ref.csv"), "event,run,m,pt,w\n1,5,100.5,20,0.5\n2,5,120.25,30,1.5\n3,6,90,25,2\n");
+    Files.writeString(dir.resolve("obs.csv"), "event,run,m,pt\n10,5,101,21\n11,6,99,22\n");
+    return dir;
+  }
+
+  @Test
+  void bareCommandPrintsUsage() {
+    Run r = run();
+    assertEquals(0, r.code());
+    assertTrue(r.out().contains("Usage: triage"), r.out());
+    assertTrue(r.out().contains("Exit codes:"), r.out());
+  }
+
+  @Test
+  void unknownOptionIsAUsageError() {
+    Run r = run("info", "--index", "x", "--frobnicate");
+    assertEquals(ExitCodes.USAGE, r.code());
+    assertTrue(r.err().contains("Unknown option: '--frobnicate'"), r.err());
+  }
+
+  @Test
+  void missingIndexIsInvalidInputWithoutStackTrace() {
+    Run r = run("info", "--index", dir.resolve("none").toString());
+    assertEquals(ExitCodes.INPUT, r.code());
+    assertTrue(r.err().contains("no index here"), r.err());
+    assertFalse(r.err().contains("\tat "), r.err());
+  }
+
+  @Test
+  void ingestWithFlagsThenInfoAsJson() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    Run r = run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run",
+        "--json");
+    assertEquals(0, r.code(), r.err());
+    JsonNode j = JSON.readTree(r.out());
+    assertEquals("ingest", j.get("command").asText());
+    assertEquals(5, j.get("rowsRead").asLong());
+    assertEquals(5, j.get("rowsIndexed").asLong());
+    assertEquals(0, j.get("rowsRejected").asLong());
+    assertEquals(4.0, j.get("samples").get(0).get("sumOfWeights").asDouble());
+    assertEquals(64, j.get("samples").get(0).get("sha256").asText().length());
+
+    Run info = run("info", "--index", index.toString(), "--json");
+    assertEquals(0, info.code(), info.err());
+    JsonNode m = JSON.readTree(info.out()).get("manifest");
+    assertEquals("triage-index/1", m.get("format").asText());
+    assertEquals(3, m.get("samples").get(0).get("events").asLong());
+    assertEquals(2, m.get("samples").get(1).get("events").asLong());
+
+    Run human = run("info", "--index", index.toString());
+    assertTrue(human.out().contains("reference"), human.out());
+    assertTrue(human.out().contains("features   m, pt"), human.out());
+  }
+
+  @Test
+  void badRowFailsWithPlaceAndSkipWritesRejects() throws IOException {
+    writeSamples();
+    Files.writeString(dir.resolve("obs.csv"), "event,run,m,pt\n10,5,101,21\n11,6,abc,22\n12,6,98,23\n");
+    Path index = dir.resolve("index");
+    String[] common = {"ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w"};
+    Run fail = run(common);
+    assertEquals(ExitCodes.INPUT, fail.code());
+    assertTrue(fail.err().contains("obs.csv:3:3: column 'm': found 'abc'"), fail.err());
+    assertFalse(Files.exists(index.resolve("manifest.json")));
+
+    String[] skip = java.util.stream.Stream.concat(java.util.Arrays.stream(common),
+        java.util.stream.Stream.of("--on-bad-row", "skip", "--json")).toArray(String[]::new);
+    Run ok = run(skip);
+    assertEquals(0, ok.code(), ok.err());
+    JsonNode j = JSON.readTree(ok.out());
+    assertEquals(6, j.get("rowsRead").asLong());
+    assertEquals(5, j.get("rowsIndexed").asLong());
+    assertEquals(1, j.get("rowsRejected").asLong());
+    String rejects = Files.readString(Path.of(j.get("rejectsFile").asText()));
+    assertTrue(rejects.contains("observed") && rejects.contains(",3,3,m,not-a-number,abc,"), rejects);
+  }
+
+  @Test
+  void specAndFlagsAreExclusive() {
+    Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
+        "--features", "m");
+    assertEquals(ExitCodes.USAGE, r.code());
+  }
+
+  @Test
+  void malformedVariationFlagIsAUsageError() throws IOException {
+    writeSamples();
+    Run r = run("ingest", "--index", dir.resolve("i").toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m", "--variation", "scale:up");
+    assertEquals(ExitCodes.USAGE, r.code());
+    assertTrue(r.err().contains("NAME:UP_COLUMN:DOWN_COLUMN"), r.err());
+  }
+
+  @Test
+  void smallDemoRunsEndToEnd() throws IOException {
+    Run r = run("demo", "--small", "--out", dir.resolve("demo").toString(), "--json");
+    assertEquals(0, r.code(), r.err());
+    JsonNode j = JSON.readTree(r.out());
+    assertEquals("demo", j.get("command").asText());
+    JsonNode ingest = j.get("ingest");
+    assertEquals(ingest.get("rowsRead").asLong(), ingest.get("rowsIndexed").asLong());
+    assertEquals(4, ingest.get("samples").size());
+    assertTrue(Files.exists(dir.resolve("demo/index/manifest.json")));
+    assertTrue(Files.exists(dir.resolve("demo/samples/truth.csv")));
+  }
+}
