@@ -29,8 +29,13 @@ public final class NeumaierSum {
     // empty
   }
 
-  /** Adds a term. */
-  public void add(double x) {
+  /** A new sum of nothing. */
+  public static NeumaierSum create() {
+    return new NeumaierSum();
+  }
+
+  /** Adds a term; returns this sum. */
+  public NeumaierSum add(double x) {
     double t = sum + x;
     if (Math.abs(sum) >= Math.abs(x)) {
       compensation += (sum - t) + x;
@@ -38,6 +43,7 @@ public final class NeumaierSum {
       compensation += (x - t) + sum;
     }
     sum = t;
+    return this;
   }
 
   /** Adds another sum's terms (its value and compensation). */
@@ -46,9 +52,18 @@ public final class NeumaierSum {
     add(other.compensation);
   }
 
-  /** The compensated sum. */
+  /** The compensated sum (the plain sum once it is infinite or NaN, so ∞ + finite stays ∞). */
   public double value() {
-    return sum + compensation;
+    return Double.isFinite(sum) ? sum + compensation : sum;
+  }
+
+  /** The compensated sum of the squares of an array. */
+  public static double ofSquares(double[] values) {
+    NeumaierSum s = new NeumaierSum();
+    for (double v : values) {
+      s.add(v * v);
+    }
+    return s.value();
   }
 
   /** The compensated sum of an array. */
