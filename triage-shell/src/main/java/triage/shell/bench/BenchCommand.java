@@ -127,7 +127,13 @@ public final class BenchCommand implements Runnable {
           long n = eventCount();
           o.say("generating and ingesting %d events with %d features in %s ...", n, features, folder);
           SampleSpec s = BenchData.write(folder.resolve("data"), n, features, seed);
-          Ingest.run(s, index, Ingest.Options.defaults().withReplace(true), line -> { });
+          System.gc();
+          try (HeapSampler heap = new HeapSampler()) {
+            IngestReport r = Ingest.run(s, index, Ingest.Options.defaults().withReplace(true), line -> { });
+            o.say("ingest: %d events in %.1f s = %.0f events/s; peak heap in use %.0f MiB (max heap %d MiB)",
+                r.rowsIndexed(), r.seconds(), r.rowsIndexed() / r.seconds(), heap.peakMiB(),
+                Runtime.getRuntime().maxMemory() >> 20);
+          }
         }
         try (EventStore store = EventStore.open(index)) {
           long total = store.manifest().totalEvents();
