@@ -174,22 +174,8 @@ public final class DemoScenario {
     return p;
   }
 
-  /** Poisson by counting exponential gaps (fine for the small means used here). */
+  /** Poisson by counting unit-rate exponential gaps: exact, and fast enough for the means used here (O(mean)). */
   static int poisson(SplittableRandom r, double mean) {
-    if (mean > 200) {
-      return (int) Math.max(0, Math.round(mean + Math.sqrt(mean) * r.nextGaussian()));
-    }
-    int n = 0;
-    double t = r.nextExponential();
-    while (t < mean) {
-      n++;
-      t += r.nextExponential();
-    }
-    return n;
-  }
-
-  /** Poisson count for large means, exact by counting gaps in unit-rate time. */
-  static int poissonCount(SplittableRandom r, double mean) {
     int n = 0;
     double t = r.nextExponential();
     while (t < mean) {
@@ -265,9 +251,9 @@ public final class DemoScenario {
 
   private static void writeObserved(Path file, SplittableRandom r, Settings s, boolean withArtefact, long firstId,
       String sample, Writer truth) throws IOException {
-    int nBackground = poissonCount(r, s.expectedBackground());
-    int nSignal = poissonCount(r, s.signalEvents());
-    int nArtefact = withArtefact ? poissonCount(r, s.artefactEvents()) : 0;
+    int nBackground = poisson(r, s.expectedBackground());
+    int nSignal = poisson(r, s.signalEvents());
+    int nArtefact = withArtefact ? poisson(r, s.artefactEvents()) : 0;
     int total = nBackground + nSignal + nArtefact;
     // Shuffle origins so injected events are not grouped by id.
     int[] origin = new int[total];

@@ -60,6 +60,18 @@ public final class BenchCommand implements Runnable {
     long eventCount() {
       return (long) Double.parseDouble(events);
     }
+
+    /** The work folder: the one given, or a new temporary one. */
+    Path folder() throws IOException {
+      return work != null ? work : Files.createTempDirectory("triage-bench");
+    }
+
+    /** Removes the folder when it was temporary. */
+    void cleanUp(Path folder) throws IOException {
+      if (work == null) {
+        deleteTree(folder);
+      }
+    }
   }
 
   /** {@code triage bench ingest}. */
@@ -78,7 +90,7 @@ public final class BenchCommand implements Runnable {
     @Override
     public Integer call() throws Exception {
       Output o = new Output(spec, false);
-      Path folder = work != null ? work : Files.createTempDirectory("triage-bench");
+      Path folder = folder();
       try {
         long n = eventCount();
         o.say("generating %d events with %d features in %s ...", n, features, folder);
@@ -96,9 +108,7 @@ public final class BenchCommand implements Runnable {
           o.say("peak heap in use during ingest: %.0f MiB", heap.peakMiB());
         }
       } finally {
-        if (work == null) {
-          deleteTree(folder);
-        }
+        cleanUp(folder);
       }
       return ExitCodes.OK;
     }
@@ -120,7 +130,7 @@ public final class BenchCommand implements Runnable {
     @Override
     public Integer call() throws Exception {
       Output o = new Output(spec, false);
-      Path folder = work != null ? work : Files.createTempDirectory("triage-bench");
+      Path folder = folder();
       try {
         Path index = folder.resolve("index");
         if (!Files.exists(index.resolve("manifest.json"))) {
@@ -165,9 +175,7 @@ public final class BenchCommand implements Runnable {
               + "min %.1f ms (%d runs)", ms[repeat / 2], ms[(int) Math.ceil(0.95 * repeat) - 1], ms[0], repeat);
         }
       } finally {
-        if (work == null) {
-          deleteTree(folder);
-        }
+        cleanUp(folder);
       }
       return ExitCodes.OK;
     }
