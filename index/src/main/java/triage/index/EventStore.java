@@ -27,6 +27,14 @@ public interface EventStore extends Closeable {
   /** What the index holds. */
   Manifest manifest();
 
+  /**
+   * A selection from a condition in the syntax of SQL's WHERE clause over this index's columns (see
+   * {@link triage.core.select.Where}); the simple conjuncts become the box, the rest a residual.
+   *
+   * @throws triage.core.select.WhereException with the position of a parse, name or type error
+   */
+  Selection where(String condition);
+
   /** Per-sample sums over the selected events, in manifest order (samples not selected have zero sums). */
   List<SampleSums> sums(Selection selection) throws IOException;
 

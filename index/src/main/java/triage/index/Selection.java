@@ -3,6 +3,7 @@ package triage.index;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Set;
+import triage.core.select.Expr;
 
 /**
  * A box selection: every range and every category condition must hold, and the event must belong to one of the
@@ -12,8 +13,9 @@ import java.util.Set;
  *     are selected as columns named {@code score:VERSION})
  * @param categories allowed values of category columns
  * @param samples the samples to include, or empty for all
+ * @param residual a further condition tested on each event in the box (from {@link EventStore#where}), or null
  */
-public record Selection(List<Range> ranges, List<CategoryIn> categories, Set<String> samples) {
+public record Selection(List<Range> ranges, List<CategoryIn> categories, Set<String> samples, Expr residual) {
 
   /**
    * A closed range on a numeric column.
@@ -52,6 +54,11 @@ public record Selection(List<Range> ranges, List<CategoryIn> categories, Set<Str
     }
   }
 
+  /** A box without residual. */
+  public Selection(List<Range> ranges, List<CategoryIn> categories, Set<String> samples) {
+    this(ranges, categories, samples, null);
+  }
+
   /** Copies the lists. */
   public Selection {
     ranges = List.copyOf(ranges);
@@ -68,18 +75,18 @@ public record Selection(List<Range> ranges, List<CategoryIn> categories, Set<Str
   public Selection and(Range range) {
     List<Range> more = new ArrayList<>(ranges);
     more.add(range);
-    return new Selection(more, categories, samples);
+    return new Selection(more, categories, samples, residual);
   }
 
   /** The same selection with one more category condition. */
   public Selection and(CategoryIn condition) {
     List<CategoryIn> more = new ArrayList<>(categories);
     more.add(condition);
-    return new Selection(ranges, more, samples);
+    return new Selection(ranges, more, samples, residual);
   }
 
   /** The same selection restricted to some samples. */
   public Selection inSamples(Set<String> names) {
-    return new Selection(ranges, categories, names);
+    return new Selection(ranges, categories, names, residual);
   }
 }

@@ -9,7 +9,9 @@ import java.math.BigDecimal;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.HashSet;
+import java.util.LinkedHashMap;
 import java.util.List;
+import java.util.Map;
 import java.util.Set;
 import java.util.SplittableRandom;
 import java.util.function.Predicate;
@@ -170,6 +172,33 @@ class EventStoreTest {
         assertEquals(sums.get(s).count(), h.total(), what);
       }
     }
+  }
+
+  /** Conditions in WHERE syntax, each with the same condition in Java, checked against the brute-force rows. */
+  @Test
+  void whereConditionsMatchBruteForce() throws IOException {
+    Map<String, Predicate<Row>> cases = new LinkedHashMap<>();
+    cases.put("a > 0.5 AND sector IN ('n1', 's2')", r -> r.x()[0] > 0.5 && Set.of("n1", "s2").contains(r.sector()));
+    cases.put("abs(a) < 1 AND b > 5 OR run = 102", r -> Math.abs(r.x()[0]) < 1 && r.x()[1] > 5 || r.run() == 102);
+    cases.put("block BETWEEN 10 AND 20 AND NOT sector = 'n2'", r -> r.block() >= 10 && r.block() <= 20
+        && !r.sector().equals("n2"));
+    cases.put("w_up > 0.5 AND c < 0", r -> r.up() > 0.5 && r.x()[2] < 0);
+    cases.put("a * 2 + c > b / 10 AND sector <> 's1'", r -> r.x()[0] * 2 + r.x()[2] > r.x()[1] / 10
+        && !r.sector().equals("s1"));
+    cases.put("a > 1 AND a < 0", r -> false);
+    for (var c : cases.entrySet()) {
+      List<SampleSums> sums = store.sums(store.where(c.getKey()));
+      for (int s = 0; s < 2; s++) {
+        String sample = s == 0 ? "reference" : "observed";
+        Predicate<Row> in = c.getValue().and(r -> r.sample().equals(sample));
+        assertEquals(rows.stream().filter(in).count(), sums.get(s).count(), c.getKey() + ", " + sample);
+        double sw = exactSum(rows, in, Row::w);
+        assertEquals(sw, sums.get(s).sumOfWeights(), 4 * Math.ulp(Math.abs(sw)) + 1e-300, c.getKey());
+      }
+    }
+    triage.core.select.WhereException e = assertThrows(triage.core.select.WhereException.class,
+        () -> store.where("a > 1 AND mass < 2"));
+    assertTrue(e.getMessage().contains("unknown column 'mass'"), e.getMessage());
   }
 
   @Test

@@ -56,6 +56,11 @@ import org.apache.lucene.store.LockObtainFailedException;
 import org.apache.lucene.util.Bits;
 import org.apache.lucene.util.BytesRef;
 import triage.core.provenance.Fingerprints;
+import triage.core.select.Expr;
+import triage.core.select.Plan;
+import triage.core.select.RowTest;
+import triage.core.select.ValueSource;
+import triage.core.select.Where;
 import triage.core.stats.NeumaierSum;
 import triage.index.ColumnKind;
 import triage.index.EventRecord;
@@ -213,8 +218,9 @@ public final class LuceneEventStore implements EventStore {
   }
 
   /** The compiled form of a selection: a Lucene query plus checks on each matching event's binary form. */
-  private record Compiled(Query query, boolean[] samples, List<Residual> residuals) {
-    boolean holds(byte[] b, int base) {
+  private record Compiled(Query query, boolean[] samples, List<Residual> residuals, RowTest test,
+      ValueReader[] readers, String[] categoryColumns) {
+    boolean holds(byte[] b, int base, EventSource source) {
       if (samples != null && !samples[Layout.getInt(b, base + Layout.SAMPLE)]) {
         return false;
       }
@@ -223,8 +229,77 @@ public final class LuceneEventStore implements EventStore {
           return false;
         }
       }
+      if (test != null) {
+        source.bytes = b;
+        source.base = base;
+        return test.test(source);
+      }
       return true;
     }
+  }
+
+  /** One event's values for a residual condition; one per segment task, pointed at each event in turn. */
+  private final class EventSource implements ValueSource {
+    /** The compiled selection. */
+    final Compiled compiled;
+
+    /** The event's binary form. */
+    byte[] bytes;
+
+    /** Where it starts. */
+    int base;
+
+    EventSource(Compiled compiled) {
+      this.compiled = compiled;
+    }
+
+    @Override
+    public double number(int slot) {
+      return compiled.readers()[slot].value(bytes, base);
+    }
+
+    @Override
+    public String category(int slot) {
+      String column = compiled.categoryColumns()[slot];
+      int sample = Layout.getInt(bytes, base + Layout.SAMPLE);
+      int code = Layout.getInt(bytes, base + layout.place(column).offset());
+      return manifest.samples().get(sample).categories().get(column).get(code);
+    }
+  }
+
+  /** What each selectable column holds, for conditions. */
+  private Map<String, Where.Kind> kinds() {
+    Map<String, Where.Kind> kinds = new LinkedHashMap<>();
+    for (Manifest.Column c : manifest.columns()) {
+      kinds.put(c.name(), c.kind() == ColumnKind.CATEGORY ? Where.Kind.CATEGORY : Where.Kind.NUMBER);
+    }
+    for (var v : manifest.spec().variations()) {
+      kinds.put(v.up(), Where.Kind.NUMBER);
+      kinds.put(v.down(), Where.Kind.NUMBER);
+    }
+    for (Manifest.Model m : manifest.models()) {
+      kinds.put(SCORE_PREFIX + m.version(), Where.Kind.NUMBER);
+    }
+    return kinds;
+  }
+
+  @Override
+  public Selection where(String condition) {
+    Map<String, Where.Kind> kinds = kinds();
+    Expr e = Where.parse(condition, kinds);
+    Plan plan = Where.plan(e, kinds);
+    if (plan.empty()) {
+      return new Selection(List.of(), List.of(), Set.of(), e);
+    }
+    List<Selection.Range> ranges = new ArrayList<>();
+    for (Plan.Range r : plan.ranges()) {
+      ranges.add(new Selection.Range(r.column(), r.lo(), r.hi()));
+    }
+    List<Selection.CategoryIn> sets = new ArrayList<>();
+    for (Plan.CategorySet c : plan.categories()) {
+      sets.add(new Selection.CategoryIn(c.column(), c.values()));
+    }
+    return new Selection(ranges, sets, Set.of(), plan.residual());
   }
 
   private int sampleOrdinal(String name) {
@@ -317,7 +392,7 @@ public final class LuceneEventStore implements EventStore {
         long lo = r.lo() == Double.NEGATIVE_INFINITY ? Long.MIN_VALUE : (long) Math.ceil(r.lo());
         long hi = r.hi() == Double.POSITIVE_INFINITY ? Long.MAX_VALUE : (long) Math.floor(r.hi());
         if (lo > hi) {
-          return new Compiled(new MatchNoDocsQuery(), samples, residuals);
+          return new Compiled(new MatchNoDocsQuery(), samples, residuals, null, null, null);
         }
         b.add(LongPoint.newRangeQuery(Fields.point(column), lo, hi), BooleanClause.Occur.FILTER);
       } else {
@@ -338,7 +413,29 @@ public final class LuceneEventStore implements EventStore {
       clauses++;
     }
     Query q = clauses == 0 ? new MatchAllDocsQuery() : b.build();
-    return new Compiled(q, samples, residuals);
+    if (selection.residual() == null) {
+      return new Compiled(q, samples, residuals, null, null, null);
+    }
+    Map<String, Where.Kind> kinds = kinds();
+    List<String> slots = new ArrayList<>();
+    RowTest test = Where.compile(selection.residual(), kinds, name -> {
+      int i = slots.indexOf(name);
+      if (i < 0) {
+        slots.add(name);
+        i = slots.size() - 1;
+      }
+      return i;
+    });
+    ValueReader[] readers = new ValueReader[slots.size()];
+    String[] categoryColumns = new String[slots.size()];
+    for (int i = 0; i < slots.size(); i++) {
+      if (kinds.get(slots.get(i)) == Where.Kind.CATEGORY) {
+        categoryColumns[i] = slots.get(i);
+      } else {
+        readers[i] = valueReader(slots.get(i));
+      }
+    }
+    return new Compiled(q, samples, residuals, test, readers, categoryColumns);
   }
 
   /** Per-event work on the binary form at {@code bytes[base …]}. */
@@ -377,6 +474,7 @@ public final class LuceneEventStore implements EventStore {
         BinaryDocValues events = DocValues.getBinary(leaf.reader(), Fields.EVENT);
         Bits live = leaf.reader().getLiveDocs();
         EventVisitor visitor = task.visitor(partial);
+        EventSource source = new EventSource(compiled);
         for (int doc = it.nextDoc(); doc != DocIdSetIterator.NO_MORE_DOCS; doc = it.nextDoc()) {
           if (live != null && !live.get(doc)) {
             continue;
@@ -385,7 +483,7 @@ public final class LuceneEventStore implements EventStore {
             throw new CorruptIndexException("event without its binary form", "segment " + leaf.ord);
           }
           BytesRef v = events.binaryValue();
-          if (compiled.holds(v.bytes, v.offset)) {
+          if (compiled.holds(v.bytes, v.offset, source)) {
             visitor.visit(v.bytes, v.offset);
           }
         }
