@@ -70,12 +70,12 @@ public final class DemoScenario {
 
     /** The full demo: 200,000 reference events, about 20,000 observed. */
     public static Settings standard() {
-      return new Settings(20261202L, 200_000, 20_000, 110, 150);
+      return new Settings(20261202L, 200_000, 20_000, 45, 150);
     }
 
     /** A small version for quick runs and tests. */
     public static Settings small() {
-      return new Settings(20261202L, 20_000, 2_000, 30, 30);
+      return new Settings(20261202L, 20_000, 2_000, 15, 30);
     }
   }
 

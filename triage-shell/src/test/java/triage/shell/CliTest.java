@@ -115,6 +115,28 @@ class CliTest {
   }
 
   @Test
+  void selectReportsObservedExpectedAndLocalSignificance() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
+        .code());
+    Run r = run("select", "--index", index.toString(), "--where", "m > 95 AND run = 5", "--json");
+    assertEquals(0, r.code(), r.err());
+    JsonNode j = JSON.readTree(r.out());
+    JsonNode c = j.get("comparisons").get(0);
+    // By hand: reference events 1 and 2 pass (w = 0.5 + 1.5), observed event 10 passes.
+    assertEquals(1, c.get("observed").asLong());
+    assertEquals(2.0, c.get("expected").asDouble(), 0);
+    assertEquals(Math.sqrt(0.25 + 2.25), c.get("expectedStatError").asDouble(), 1e-15);
+    assertEquals(-1.0, c.get("excess").asDouble(), 0);
+    assertTrue(j.get("cautions").toString().contains("look-elsewhere"), j.toString());
+    Run bad = run("select", "--index", index.toString(), "--where", "m >");
+    assertEquals(ExitCodes.INPUT, bad.code());
+    assertTrue(bad.err().contains("expected a number, a column, a function or '('"), bad.err());
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");
