@@ -51,6 +51,12 @@ public interface EventStore extends Closeable {
    */
   double[][] columns(String sample, List<String> columns) throws IOException;
 
+  /**
+   * Which of a sample's events a selection keeps: bit i stands for the sample's i-th event in row order (the same
+   * order as {@link #columns} and {@link #weights}).
+   */
+  java.util.BitSet mask(Selection selection, String sample) throws IOException;
+
   /** The nominal weights of a sample's events, in row order. */
   double[] weights(String sample) throws IOException;
 

@@ -745,6 +745,29 @@ public final class LuceneEventStore implements EventStore {
   }
 
   @Override
+  public java.util.BitSet mask(Selection selection, String sample) throws IOException {
+    Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
+    long first = facts.firstRow();
+    List<java.util.BitSet> parts = perLeaf(selection.inSamples(Set.of(sample)),
+        new LeafTask<java.util.BitSet>() {
+          @Override
+          public java.util.BitSet start(LeafReaderContext leaf) {
+            return new java.util.BitSet();
+          }
+
+          @Override
+          public EventVisitor visitor(java.util.BitSet bits) {
+            return (b, base) -> bits.set((int) (Layout.getLong(b, base + Layout.ROW) - first));
+          }
+        });
+    java.util.BitSet all = new java.util.BitSet((int) facts.events());
+    for (java.util.BitSet p : parts) {
+      all.or(p);
+    }
+    return all;
+  }
+
+  @Override
   public double[] weights(String sample) throws IOException {
     Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     long first = facts.firstRow();

@@ -1,0 +1,161 @@
+package triage.shell;
+
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.BitSet;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.concurrent.Callable;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+import triage.core.provenance.ToolVersion;
+import triage.core.ranking.FeatureRanking;
+import triage.core.sample.Role;
+import triage.index.EventStore;
+import triage.index.Manifest;
+import triage.index.Selection;
+
+/** {@code triage rank}: which features set the selected observed events apart from the reference. */
+@Command(name = "rank", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
+    description = {"Rank the features by how much the selected observed events differ from the reference: "
+        + "(a) all reference events, where the selection lives; (b) reference events inside the same selection, "
+        + "what the selection still does not explain.",
+        "Measures: weighted KS distance, |AUC - 0.5|, Wasserstein-1 in reference standard deviations, binned "
+            + "Jensen-Shannon divergence, and permutation p-values of the KS distance with the maxT adjustment "
+            + "across features."},
+    footer = ExitCodes.FOOTER)
+public final class RankCommand implements Callable<Integer> {
+  /** Filled by picocli. */
+  @CommandLine.Spec
+  CommandLine.Model.CommandSpec spec;
+
+  /** The index folder. */
+  @Option(names = "--index", required = true, paramLabel = "DIR", description = "The index folder.")
+  Path index;
+
+  /** The condition. */
+  @Option(names = "--where", required = true, paramLabel = "CONDITION",
+      description = "The selection, in SQL WHERE syntax.")
+  String where;
+
+  /** Which comparison. */
+  @Option(names = "--versus", defaultValue = "both", paramLabel = "all|inside|both",
+      description = "Compare with all reference events, those inside the selection, or both (default).")
+  Versus versus;
+
+  /** Permutations. */
+  @Option(names = "--permutations", defaultValue = "200", paramLabel = "B",
+      description = "Label permutations for the p-values of the comparison inside the selection (default: "
+          + "${DEFAULT-VALUE}; 0 for none). Against all reference events the selection's own cuts make such "
+          + "p-values trivially small, so only the asymptotic KS p-value is given there.")
+  int permutations;
+
+  /** Seed. */
+  @Option(names = "--seed", defaultValue = "20261202", paramLabel = "N",
+      description = "Seed of the permutations (default: ${DEFAULT-VALUE}).")
+  long seed;
+
+  /** JSON output. */
+  @Option(names = "--json", description = "Print exactly one JSON object on stdout (fields: docs/json.md).")
+  boolean json;
+
+  /** Comparison choices. */
+  enum Versus {
+    /** All reference events. */
+    all,
+    /** Reference events inside the selection. */
+    inside,
+    /** Both. */
+    both
+  }
+
+  @Override
+  public Integer call() throws Exception {
+    Output o = new Output(spec, json);
+    if (permutations < 0) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--permutations must be 0 or more");
+    }
+    try (EventStore store = EventStore.open(index)) {
+      Manifest m = store.manifest();
+      String observed = sampleOf(m, Role.OBSERVED);
+      String reference = sampleOf(m, Role.REFERENCE);
+      List<String> features = m.spec().columns().features();
+      Selection selection = store.where(where);
+      BitSet obsMask = store.mask(selection, observed);
+      if (obsMask.cardinality() < 2) {
+        throw new triage.core.sample.InputException(null, "the selection keeps " + obsMask.cardinality()
+            + " observed events; ranking needs at least 2");
+      }
+      double[][] obs = subset(store.columns(observed, features), obsMask);
+      double[][] refAll = store.columns(reference, features);
+      double[] wAll = store.weights(reference);
+      Map<String, Object> result = new LinkedHashMap<>();
+      result.put("command", "rank");
+      result.put("tool", "triage " + ToolVersion.get());
+      result.put("index", index.toString());
+      result.put("where", where);
+      result.put("observedEvents", obsMask.cardinality());
+      result.put("permutations", permutations);
+      result.put("seed", seed);
+      o.say("selection  %s: %d observed events", where, obsMask.cardinality());
+      if (versus != Versus.inside) {
+        List<FeatureRanking.Row> rows = FeatureRanking.rank(features, obs, refAll, wAll, 0, seed);
+        print(o, "versus all reference events (" + wAll.length + "): where the selection lives", rows);
+        result.put("versusAll", rows);
+      }
+      if (versus != Versus.all) {
+        BitSet refMask = store.mask(selection, reference);
+        if (refMask.cardinality() < 2) {
+          o.say("versus reference inside the selection: only %d reference events, skipped", refMask.cardinality());
+          result.put("versusInside", null);
+        } else {
+          double[][] refIn = subset(refAll, refMask);
+          double[] wIn = subset(new double[][] {wAll}, refMask)[0];
+          List<FeatureRanking.Row> rows = FeatureRanking.rank(features, obs, refIn, wIn, permutations, seed);
+          print(o, "versus reference inside the selection (" + refMask.cardinality()
+              + "): what the selection does not explain", rows);
+          result.put("versusInside", rows);
+        }
+      }
+      o.say("note: 'perm p' is the permutation p-value of the KS distance, (k+1)/(B+1), and 'p adj' the same "
+          + "adjusted for the %d features (maxT); 'KS p asym' uses effective sample sizes and is a guide only. "
+          + "All are local to this selection.", features.size());
+      o.result(result);
+    }
+    return ExitCodes.OK;
+  }
+
+  private static void print(Output o, String title, List<FeatureRanking.Row> rows) {
+    o.say("");
+    o.say("%s", title);
+    o.say("  %-14s %8s %10s %8s %10s %9s %8s %8s", "feature", "KS D", "|AUC-0.5|", "W1/sd", "JS (nats)", "KS p asym",
+        "perm p", "p adj");
+    for (FeatureRanking.Row r : rows) {
+      o.say("  %-14s %8.4f %10.4f %8.4f %10.5f %9.3g %8.3g %8.3g", r.feature(), r.ks(), r.aucSeparation(),
+          r.wasserstein(), r.jensenShannon(), r.ksAsymptoticP(), r.rawP(), r.adjustedP());
+    }
+  }
+
+  static double[][] subset(double[][] columns, BitSet mask) {
+    int n = mask.cardinality();
+    double[][] out = new double[columns.length][n];
+    for (int f = 0; f < columns.length; f++) {
+      int k = 0;
+      for (int i = mask.nextSetBit(0); i >= 0; i = mask.nextSetBit(i + 1)) {
+        out[f][k++] = columns[f][i];
+      }
+    }
+    return out;
+  }
+
+  private static String sampleOf(Manifest m, Role role) {
+    for (Manifest.Sample s : m.samples()) {
+      if (s.role() == role) {
+        return s.name();
+      }
+    }
+    throw new triage.core.sample.InputException(null, "the index has no " + role + " sample");
+  }
+}
