@@ -137,6 +137,39 @@ class CliTest {
   }
 
   @Test
+  void fitStoresAModelVersionAndScoresEveryEvent() throws IOException {
+    StringBuilder ref = new StringBuilder("event,m,w\n");
+    StringBuilder obs = new StringBuilder("event,m\n");
+    java.util.SplittableRandom r = new java.util.SplittableRandom(4);
+    for (int i = 0; i < 2000; i++) {
+      ref.append(i).append(',').append(r.nextGaussian()).append(',').append(0.5 + r.nextDouble()).append('\n');
+    }
+    for (int i = 0; i < 300; i++) {
+      obs.append(i).append(',').append(0.7 + r.nextGaussian()).append('\n');
+    }
+    Files.writeString(dir.resolve("ref.csv"), ref);
+    Files.writeString(dir.resolve("obs.csv"), obs);
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m", "--weight", "w").code());
+    Run fit = run("fit", "--index", index.toString(), "--layers", "3", "--max-iterations", "200", "--threads", "2",
+        "--json");
+    assertEquals(0, fit.code(), fit.err());
+    JsonNode j = JSON.readTree(fit.out());
+    assertEquals("m1", j.get("version").asText());
+    assertEquals(10, j.get("parameters").asInt());
+    // A shift of 0.7 in 300 events is far from the no-signal hypothesis: t must be clearly positive.
+    assertTrue(j.get("testStatistic").asDouble() > 20, j.toString());
+    Run info = run("info", "--index", index.toString(), "--json");
+    assertEquals("m1", JSON.readTree(info.out()).get("manifest").get("models").get(0).get("version").asText());
+    Run sel = run("select", "--index", index.toString(), "--where", "score:m1 > 0", "--json");
+    assertEquals(0, sel.code(), sel.err());
+    long kept = JSON.readTree(sel.out()).get("comparisons").get(0).get("observed").asLong();
+    assertTrue(kept > 150 && kept <= 300, "observed events with positive log ratio: " + kept);
+    assertTrue(Files.exists(index.resolve("models/m1.json")));
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");

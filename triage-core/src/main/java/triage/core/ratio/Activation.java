@@ -15,20 +15,20 @@ package triage.core.ratio;
  * Arguments beyond ±700 saturate (see {@link FastExp}).
  */
 public enum Activation {
-    /** Logistic sigmoid, the default. */
-    SIGMOID,
-    /** Hyperbolic tangent. */
-    TANH;
+  /** Logistic sigmoid, the default. */
+  SIGMOID,
+  /** Hyperbolic tangent. */
+  TANH;
 
-    /** Scalar activation, the reference for every kernel. */
-    double apply(double z) {
-        return this == SIGMOID
-                ? 1.0 / (1.0 + FastExp.exp(-z))
-                : 1.0 - 2.0 / (1.0 + FastExp.exp(z + z));
-    }
+  /** Scalar activation, the reference for every kernel. */
+  double apply(double z) {
+    return this == SIGMOID
+        ? 1.0 / (1.0 + FastExp.exp(-z))
+        : 1.0 - 2.0 / (1.0 + FastExp.exp(z + z));
+  }
 
-    /** Derivative expressed through the activation value {@code a}. */
-    double derivativeFromValue(double a) {
-        return this == SIGMOID ? a * (1.0 - a) : 1.0 - a * a;
-    }
+  /** Derivative expressed through the activation value {@code a}. */
+  double derivativeFromValue(double a) {
+    return this == SIGMOID ? a * (1.0 - a) : 1.0 - a * a;
+  }
 }

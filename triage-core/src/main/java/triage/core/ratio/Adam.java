@@ -13,56 +13,56 @@ package triage.core.ratio;
  * projected gradient); the stop reason is always {@link StopReason#EPOCHS_COMPLETED}.
  */
 final class Adam {
-    /** First-moment decay. */
-    static final double BETA1 = 0.9;
-    /** Second-moment decay. */
-    static final double BETA2 = 0.999;
-    /** Denominator guard. */
-    static final double EPSILON = 1e-8;
+  /** First-moment decay. */
+  static final double BETA1 = 0.9;
+  /** Second-moment decay. */
+  static final double BETA2 = 0.999;
+  /** Denominator guard. */
+  static final double EPSILON = 1e-8;
 
-    private Adam() {
-    }
+  private Adam() {
+  }
 
-    static OptimiserOutcome minimise(DifferentiableFunction fn, double[] start, double bound,
-                                     double learningRate, int epochs, StoppingRule rule,
-                                     IterationHook hook, TrainingLog.Recorder log) {
-        int n = fn.dimension();
-        double[] x = start.clone();
-        Box.project(x, bound);
-        double[] g = new double[n];
-        double[] m = new double[n];
-        double[] v = new double[n];
-        double[] history = new double[rule.window() + 1];
-        double b1t = 1.0;
-        double b2t = 1.0;
-        double f = 0;
-        double pg = 0;
-        for (int t = 0; t < epochs; t++) {
-            f = fn.valueAndGradient(x, g);
-            pg = Box.projectedGradientNorm(x, g, bound);
-            history[t % history.length] = f;
-            log.offer(t, f, pg);
-            hook.after(t, f, pg, x);
-            b1t *= BETA1;
-            b2t *= BETA2;
-            for (int i = 0; i < n; i++) {
-                m[i] = BETA1 * m[i] + (1 - BETA1) * g[i];
-                v[i] = BETA2 * v[i] + (1 - BETA2) * g[i] * g[i];
-                double mh = m[i] / (1 - b1t);
-                double vh = v[i] / (1 - b2t);
-                x[i] = Math.min(Math.max(x[i] - learningRate * mh / (Math.sqrt(vh) + EPSILON),
-                        -bound), bound);
-            }
-        }
-        f = fn.valueAndGradient(x, g);
-        pg = Box.projectedGradientNorm(x, g, bound);
-        history[epochs % history.length] = f;
-        log.offer(epochs, f, pg);
-        hook.after(epochs, f, pg, x);
-        boolean converged = epochs >= rule.window()
-                && rule.lossChangeSmall(history[(epochs - rule.window()) % history.length], f)
-                && pg <= rule.gradientTolerance();
-        return new OptimiserOutcome(x, f, epochs, epochs + 1L, StopReason.EPOCHS_COMPLETED,
-                converged, pg, log.finish());
+  static OptimiserOutcome minimise(DifferentiableFunction fn, double[] start, double bound,
+                   double learningRate, int epochs, StoppingRule rule,
+                   IterationHook hook, TrainingLog.Recorder log) {
+    int n = fn.dimension();
+    double[] x = start.clone();
+    Box.project(x, bound);
+    double[] g = new double[n];
+    double[] m = new double[n];
+    double[] v = new double[n];
+    double[] history = new double[rule.window() + 1];
+    double b1t = 1.0;
+    double b2t = 1.0;
+    double f = 0;
+    double pg = 0;
+    for (int t = 0; t < epochs; t++) {
+      f = fn.valueAndGradient(x, g);
+      pg = Box.projectedGradientNorm(x, g, bound);
+      history[t % history.length] = f;
+      log.offer(t, f, pg);
+      hook.after(t, f, pg, x);
+      b1t *= BETA1;
+      b2t *= BETA2;
+      for (int i = 0; i < n; i++) {
+        m[i] = BETA1 * m[i] + (1 - BETA1) * g[i];
+        v[i] = BETA2 * v[i] + (1 - BETA2) * g[i] * g[i];
+        double mh = m[i] / (1 - b1t);
+        double vh = v[i] / (1 - b2t);
+        x[i] = Math.min(Math.max(x[i] - learningRate * mh / (Math.sqrt(vh) + EPSILON),
+            -bound), bound);
+      }
     }
+    f = fn.valueAndGradient(x, g);
+    pg = Box.projectedGradientNorm(x, g, bound);
+    history[epochs % history.length] = f;
+    log.offer(epochs, f, pg);
+    hook.after(epochs, f, pg, x);
+    boolean converged = epochs >= rule.window()
+        && rule.lossChangeSmall(history[(epochs - rule.window()) % history.length], f)
+        && pg <= rule.gradientTolerance();
+    return new OptimiserOutcome(x, f, epochs, epochs + 1L, StopReason.EPOCHS_COMPLETED,
+        converged, pg, log.finish());
+  }
 }

@@ -25,111 +25,111 @@ package triage.core.ratio;
  * an evaluation; features are read once per evaluation, so memory traffic is not the limit.
  */
 final class Batch {
-    /** Network shape. */
-    final Architecture arch;
-    /** Loss whose terms the kernel evaluates. */
-    final LossKind loss;
-    /** Padded event count (multiple of {@link Kernel#TILE}). */
-    final int n;
-    /** Standardised features, feature-major, length d·n. */
-    final double[] x;
-    /** Coefficient A_e per event. */
-    final double[] coefA;
-    /** Coefficient B_e per event. */
-    final double[] coefB;
-    /** Constant added to the network output. */
-    final double offset;
-    /** Layer widths n_0..n_{L+1}. */
-    final int[] width;
-    /** Weight offsets per layer (index 1..L+1). */
-    final int[] wOff;
-    /** Bias offsets per layer (index 1..L+1). */
-    final int[] bOff;
+  /** Network shape. */
+  final Architecture arch;
+  /** Loss whose terms the kernel evaluates. */
+  final LossKind loss;
+  /** Padded event count (multiple of {@link Kernel#TILE}). */
+  final int n;
+  /** Standardised features, feature-major, length d·n. */
+  final double[] x;
+  /** Coefficient A_e per event. */
+  final double[] coefA;
+  /** Coefficient B_e per event. */
+  final double[] coefB;
+  /** Constant added to the network output. */
+  final double offset;
+  /** Layer widths n_0..n_{L+1}. */
+  final int[] width;
+  /** Weight offsets per layer (index 1..L+1). */
+  final int[] wOff;
+  /** Bias offsets per layer (index 1..L+1). */
+  final int[] bOff;
 
-    Batch(Architecture arch, LossKind loss, int n, double[] x, double[] coefA, double[] coefB,
-          double offset) {
-        if (n % Kernel.TILE != 0 || x.length != arch.inputs() * n || coefA.length != n
-                || coefB.length != n) {
-            throw new IllegalArgumentException("inconsistent batch sizes");
-        }
-        this.arch = arch;
-        this.loss = loss;
-        this.n = n;
-        this.x = x;
-        this.coefA = coefA;
-        this.coefB = coefB;
-        this.offset = offset;
-        int layers = arch.layerCount();
-        this.width = new int[layers + 1];
-        this.wOff = new int[layers + 1];
-        this.bOff = new int[layers + 1];
-        for (int l = 0; l <= layers; l++) {
-            width[l] = arch.width(l);
-            if (l > 0) {
-                wOff[l] = arch.weightOffset(l);
-                bOff[l] = arch.biasOffset(l);
-            }
-        }
+  Batch(Architecture arch, LossKind loss, int n, double[] x, double[] coefA, double[] coefB,
+     double offset) {
+    if (n % Kernel.TILE != 0 || x.length != arch.inputs() * n || coefA.length != n
+        || coefB.length != n) {
+      throw new IllegalArgumentException("inconsistent batch sizes");
     }
-
-    /** Same features, other loss coefficients and offset. */
-    Batch with(LossKind otherLoss, double[] a, double[] b, double otherOffset) {
-        return new Batch(arch, otherLoss, n, x, a, b, otherOffset);
+    this.arch = arch;
+    this.loss = loss;
+    this.n = n;
+    this.x = x;
+    this.coefA = coefA;
+    this.coefB = coefB;
+    this.offset = offset;
+    int layers = arch.layerCount();
+    this.width = new int[layers + 1];
+    this.wOff = new int[layers + 1];
+    this.bOff = new int[layers + 1];
+    for (int l = 0; l <= layers; l++) {
+      width[l] = arch.width(l);
+      if (l > 0) {
+        wOff[l] = arch.weightOffset(l);
+        bOff[l] = arch.biasOffset(l);
+      }
     }
+  }
 
-    /** Padded size for {@code events} real events. */
-    static int paddedSize(int events) {
-        return (events + Kernel.TILE - 1) / Kernel.TILE * Kernel.TILE;
+  /** Same features, other loss coefficients and offset. */
+  Batch with(LossKind otherLoss, double[] a, double[] b, double otherOffset) {
+    return new Batch(arch, otherLoss, n, x, a, b, otherOffset);
+  }
+
+  /** Padded size for {@code events} real events. */
+  static int paddedSize(int events) {
+    return (events + Kernel.TILE - 1) / Kernel.TILE * Kernel.TILE;
+  }
+
+  /**
+   * Standardised, padded feature array of reference then observed events.
+   */
+  static double[] standardisedFeatures(TrainingData data, Standardisation st, int n) {
+    int d = data.features();
+    int nr = data.referenceCount();
+    int no = data.observedCount();
+    double[] ref = data.referenceView();
+    double[] obs = data.observedView();
+    double[] x = new double[d * n];
+    for (int k = 0; k < d; k++) {
+      for (int i = 0; i < nr; i++) {
+        x[k * n + i] = st.apply(k, ref[k * nr + i]);
+      }
+      for (int j = 0; j < no; j++) {
+        x[k * n + nr + j] = st.apply(k, obs[k * no + j]);
+      }
     }
+    return x;
+  }
 
-    /**
-     * Standardised, padded feature array of reference then observed events.
-     */
-    static double[] standardisedFeatures(TrainingData data, Standardisation st, int n) {
-        int d = data.features();
-        int nr = data.referenceCount();
-        int no = data.observedCount();
-        double[] ref = data.referenceView();
-        double[] obs = data.observedView();
-        double[] x = new double[d * n];
-        for (int k = 0; k < d; k++) {
-            for (int i = 0; i < nr; i++) {
-                x[k * n + i] = st.apply(k, ref[k * nr + i]);
-            }
-            for (int j = 0; j < no; j++) {
-                x[k * n + nr + j] = st.apply(k, obs[k * no + j]);
-            }
-        }
-        return x;
+  /** Per-event working storage of one worker thread. */
+  static final class Workspace {
+    /** Activations of hidden layer l at act[l−1][j·TILE + e]. */
+    final double[][] act;
+    /** Back-propagated ∂L/∂z of hidden layer l at delta[l−1][j·TILE + e]. */
+    final double[][] delta;
+    /** Network output f per event of the tile. */
+    final double[] f;
+    /** ∂ℓ/∂f per event of the tile. */
+    final double[] dOut;
+    /** Scratch per event of the tile. */
+    final double[] tmp;
+    /** Eight accumulator lanes per slot: slot 0 loss, slot 1+p gradient of θ_p. */
+    final double[] lanes;
+
+    Workspace(Architecture arch) {
+      int hidden = arch.hiddenWidths().size();
+      act = new double[hidden][];
+      delta = new double[hidden][];
+      for (int l = 1; l <= hidden; l++) {
+        act[l - 1] = new double[arch.width(l) * Kernel.TILE];
+        delta[l - 1] = new double[arch.width(l) * Kernel.TILE];
+      }
+      f = new double[Kernel.TILE];
+      dOut = new double[Kernel.TILE];
+      tmp = new double[Kernel.TILE];
+      lanes = new double[(arch.parameterCount() + 1) * Kernel.LANES];
     }
-
-    /** Per-event working storage of one worker thread. */
-    static final class Workspace {
-        /** Activations of hidden layer l at act[l−1][j·TILE + e]. */
-        final double[][] act;
-        /** Back-propagated ∂L/∂z of hidden layer l at delta[l−1][j·TILE + e]. */
-        final double[][] delta;
-        /** Network output f per event of the tile. */
-        final double[] f;
-        /** ∂ℓ/∂f per event of the tile. */
-        final double[] dOut;
-        /** Scratch per event of the tile. */
-        final double[] tmp;
-        /** Eight accumulator lanes per slot: slot 0 loss, slot 1+p gradient of θ_p. */
-        final double[] lanes;
-
-        Workspace(Architecture arch) {
-            int hidden = arch.hiddenWidths().size();
-            act = new double[hidden][];
-            delta = new double[hidden][];
-            for (int l = 1; l <= hidden; l++) {
-                act[l - 1] = new double[arch.width(l) * Kernel.TILE];
-                delta[l - 1] = new double[arch.width(l) * Kernel.TILE];
-            }
-            f = new double[Kernel.TILE];
-            dOut = new double[Kernel.TILE];
-            tmp = new double[Kernel.TILE];
-            lanes = new double[(arch.parameterCount() + 1) * Kernel.LANES];
-        }
-    }
+  }
 }

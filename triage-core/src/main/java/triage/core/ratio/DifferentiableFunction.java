@@ -2,9 +2,9 @@ package triage.core.ratio;
 
 /** A smooth objective the optimisers minimise. */
 interface DifferentiableFunction {
-    /** Number of variables. */
-    int dimension();
+  /** Number of variables. */
+  int dimension();
 
-    /** Value at x; writes the gradient into {@code gradient} (length {@link #dimension()}). */
-    double valueAndGradient(double[] x, double[] gradient);
+  /** Value at x; writes the gradient into {@code gradient} (length {@link #dimension()}). */
+  double valueAndGradient(double[] x, double[] gradient);
 }

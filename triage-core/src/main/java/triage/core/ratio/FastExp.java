@@ -17,71 +17,71 @@ package triage.core.ratio;
  * Subnormal results never occur.
  */
 final class FastExp {
-    /** Upper clamp of the argument. */
-    static final double MAX_ARG = 700.0;
-    /** Lower clamp of the argument. */
-    static final double MIN_ARG = -700.0;
-    /** 1 / ln 2. */
-    static final double LOG2E = 0x1.71547652b82fep0;
-    /** 1.5 · 2^52, adding it rounds to an integer in the low mantissa bits. */
-    static final double SHIFTER = 0x1.8p52;
-    /** ln 2 rounded to double. */
-    static final double LN2_HI = 0x1.62e42fefa39efp-1;
-    /** ln 2 − LN2_HI. */
-    static final double LN2_LO = 0x1.abc9e3b39803fp-56;
-    /** Taylor coefficients 1/k!, k = 13 down to 0 (Horner order). */
-    static final double[] C = {
-        1.0 / 6227020800.0, 1.0 / 479001600.0, 1.0 / 39916800.0, 1.0 / 3628800.0,
-        1.0 / 362880.0, 1.0 / 40320.0, 1.0 / 5040.0, 1.0 / 720.0, 1.0 / 120.0, 1.0 / 24.0,
-        1.0 / 6.0, 0.5, 1.0, 1.0
-    };
-    /** Coefficient 1/13!. */
-    static final double C13 = C[0];
-    /** Coefficient 1/12!. */
-    static final double C12 = C[1];
-    /** Coefficient 1/11!. */
-    static final double C11 = C[2];
-    /** Coefficient 1/10!. */
-    static final double C10 = C[3];
-    /** Coefficient 1/9!. */
-    static final double C9 = C[4];
-    /** Coefficient 1/8!. */
-    static final double C8 = C[5];
-    /** Coefficient 1/7!. */
-    static final double C7 = C[6];
-    /** Coefficient 1/6!. */
-    static final double C6 = C[7];
-    /** Coefficient 1/5!. */
-    static final double C5 = C[8];
-    /** Coefficient 1/4!. */
-    static final double C4 = C[9];
-    /** Coefficient 1/3!. */
-    static final double C3 = C[10];
+  /** Upper clamp of the argument. */
+  static final double MAX_ARG = 700.0;
+  /** Lower clamp of the argument. */
+  static final double MIN_ARG = -700.0;
+  /** 1 / ln 2. */
+  static final double LOG2E = 0x1.71547652b82fep0;
+  /** 1.5 · 2^52, adding it rounds to an integer in the low mantissa bits. */
+  static final double SHIFTER = 0x1.8p52;
+  /** ln 2 rounded to double. */
+  static final double LN2_HI = 0x1.62e42fefa39efp-1;
+  /** ln 2 − LN2_HI. */
+  static final double LN2_LO = 0x1.abc9e3b39803fp-56;
+  /** Taylor coefficients 1/k!, k = 13 down to 0 (Horner order). */
+  static final double[] C = {
+    1.0 / 6227020800.0, 1.0 / 479001600.0, 1.0 / 39916800.0, 1.0 / 3628800.0,
+    1.0 / 362880.0, 1.0 / 40320.0, 1.0 / 5040.0, 1.0 / 720.0, 1.0 / 120.0, 1.0 / 24.0,
+    1.0 / 6.0, 0.5, 1.0, 1.0
+  };
+  /** Coefficient 1/13!. */
+  static final double C13 = C[0];
+  /** Coefficient 1/12!. */
+  static final double C12 = C[1];
+  /** Coefficient 1/11!. */
+  static final double C11 = C[2];
+  /** Coefficient 1/10!. */
+  static final double C10 = C[3];
+  /** Coefficient 1/9!. */
+  static final double C9 = C[4];
+  /** Coefficient 1/8!. */
+  static final double C8 = C[5];
+  /** Coefficient 1/7!. */
+  static final double C7 = C[6];
+  /** Coefficient 1/6!. */
+  static final double C6 = C[7];
+  /** Coefficient 1/5!. */
+  static final double C5 = C[8];
+  /** Coefficient 1/4!. */
+  static final double C4 = C[9];
+  /** Coefficient 1/3!. */
+  static final double C3 = C[10];
 
-    private FastExp() {
-    }
+  private FastExp() {
+  }
 
-    /** e^x for x in [−700, 700]; clamped outside (see class comment). */
-    static double exp(double x) {
-        double xc = Math.max(Math.min(x, MAX_ARG), MIN_ARG);
-        double t = Math.fma(xc, LOG2E, SHIFTER);
-        double n = t - SHIFTER;
-        double r = Math.fma(n, -LN2_HI, xc);
-        r = Math.fma(n, -LN2_LO, r);
-        double p = Math.fma(C13, r, C12);
-        p = Math.fma(p, r, C11);
-        p = Math.fma(p, r, C10);
-        p = Math.fma(p, r, C9);
-        p = Math.fma(p, r, C8);
-        p = Math.fma(p, r, C7);
-        p = Math.fma(p, r, C6);
-        p = Math.fma(p, r, C5);
-        p = Math.fma(p, r, C4);
-        p = Math.fma(p, r, C3);
-        p = Math.fma(p, r, 0.5);
-        p = Math.fma(p, r, 1.0);
-        p = Math.fma(p, r, 1.0);
-        double scale = Double.longBitsToDouble((Double.doubleToRawLongBits(t) + 1023L) << 52);
-        return p * scale;
-    }
+  /** e^x for x in [−700, 700]; clamped outside (see class comment). */
+  static double exp(double x) {
+    double xc = Math.max(Math.min(x, MAX_ARG), MIN_ARG);
+    double t = Math.fma(xc, LOG2E, SHIFTER);
+    double n = t - SHIFTER;
+    double r = Math.fma(n, -LN2_HI, xc);
+    r = Math.fma(n, -LN2_LO, r);
+    double p = Math.fma(C13, r, C12);
+    p = Math.fma(p, r, C11);
+    p = Math.fma(p, r, C10);
+    p = Math.fma(p, r, C9);
+    p = Math.fma(p, r, C8);
+    p = Math.fma(p, r, C7);
+    p = Math.fma(p, r, C6);
+    p = Math.fma(p, r, C5);
+    p = Math.fma(p, r, C4);
+    p = Math.fma(p, r, C3);
+    p = Math.fma(p, r, 0.5);
+    p = Math.fma(p, r, 1.0);
+    p = Math.fma(p, r, 1.0);
+    double scale = Double.longBitsToDouble((Double.doubleToRawLongBits(t) + 1023L) << 52);
+    return p * scale;
+  }
 }

@@ -26,139 +26,139 @@ import java.util.Locale;
  * triage.core.ratio.FitBenchmark [threads] [nRef] [nObs] [adamEpochs]}.
  */
 public final class FitBenchmark {
-    private FitBenchmark() {
-    }
+  private FitBenchmark() {
+  }
 
-    /**
-     * Entry point; arguments: threads (2), nRef (200000), nObs (2000), Adam epochs (2000),
-     * L-BFGS iteration cap (5000, the default stopping rule), random starts of the extra
-     * multi-start fit (4; 1 skips it).
-     */
-    public static void main(String[] args) {
-        int threads = args.length > 0 ? Integer.parseInt(args[0]) : 2;
-        int nRef = args.length > 1 ? Integer.parseInt(args[1]) : 200_000;
-        int nObs = args.length > 2 ? Integer.parseInt(args[2]) : 2_000;
-        int epochs = args.length > 3 ? Integer.parseInt(args[3]) : 2_000;
-        int maxIterations = args.length > 4 ? Integer.parseInt(args[4])
-                : StoppingRule.defaults().maxIterations();
-        int starts = args.length > 5 ? Integer.parseInt(args[5]) : 4;
-        run(System.out, threads, nRef, nObs, epochs, maxIterations, starts);
-    }
+  /**
+   * Entry point; arguments: threads (2), nRef (200000), nObs (2000), Adam epochs (2000),
+   * L-BFGS iteration cap (5000, the default stopping rule), random starts of the extra
+   * multi-start fit (4; 1 skips it).
+   */
+  public static void main(String[] args) {
+    int threads = args.length > 0 ? Integer.parseInt(args[0]) : 2;
+    int nRef = args.length > 1 ? Integer.parseInt(args[1]) : 200_000;
+    int nObs = args.length > 2 ? Integer.parseInt(args[2]) : 2_000;
+    int epochs = args.length > 3 ? Integer.parseInt(args[3]) : 2_000;
+    int maxIterations = args.length > 4 ? Integer.parseInt(args[4])
+        : StoppingRule.defaults().maxIterations();
+    int starts = args.length > 5 ? Integer.parseInt(args[5]) : 4;
+    run(System.out, threads, nRef, nObs, epochs, maxIterations, starts);
+  }
 
-    /** Runs every case and prints the figures to {@code out}. */
-    public static void run(PrintStream out, int threads, int nRef, int nObs, int adamEpochs,
-                           int maxIterations, int starts) {
-        out.printf(Locale.ROOT, "FitBenchmark: threads=%d nRef=%d nObs=%d adamEpochs=%d kernel=%s%n",
-                threads, nRef, nObs, adamEpochs, Kernels.select(KernelChoice.AUTO).name());
-        warmUp(threads);
-        double[] probe = Kernels.vectorAvailable() ? VectorProbe.measure(20_000) : null;
-        if (probe != null) {
-            out.printf(Locale.ROOT, "per-element cost on one core: exp(double) %.3f ns, div(double) %.3f ns,"
-                    + " fma(double, 2 loads) %.3f ns, exp(float) %.3f ns%n",
-                    probe[0], probe[1], probe[2], probe[3]);
-        }
-        int bump = Math.max(1, nObs / 50);
-        runCase(out, "1D", SyntheticData.exponentialBump(nRef, nObs, bump, 4.0, 0.16, 101L),
-                threads, adamEpochs, maxIterations, starts, probe);
-        runCase(out, "2D", SyntheticData.gaussianBump(new double[] {1.5, 0.0}, 0.25, nRef, nObs,
-                bump, 202L), threads, adamEpochs, maxIterations, starts, probe);
-        runCase(out, "5D", SyntheticData.gaussianBump(new double[] {1.5, 0.0, 0.0, 0.0, 0.0}, 0.25,
-                nRef, nObs, bump, 505L), threads, adamEpochs, maxIterations, starts, probe);
+  /** Runs every case and prints the figures to {@code out}. */
+  public static void run(PrintStream out, int threads, int nRef, int nObs, int adamEpochs,
+              int maxIterations, int starts) {
+    out.printf(Locale.ROOT, "FitBenchmark: threads=%d nRef=%d nObs=%d adamEpochs=%d kernel=%s%n",
+        threads, nRef, nObs, adamEpochs, Kernels.select(KernelChoice.AUTO).name());
+    warmUp(threads);
+    double[] probe = Kernels.vectorAvailable() ? VectorProbe.measure(20_000) : null;
+    if (probe != null) {
+      out.printf(Locale.ROOT, "per-element cost on one core: exp(double) %.3f ns, div(double) %.3f ns,"
+          + " fma(double, 2 loads) %.3f ns, exp(float) %.3f ns%n",
+          probe[0], probe[1], probe[2], probe[3]);
     }
+    int bump = Math.max(1, nObs / 50);
+    runCase(out, "1D", SyntheticData.exponentialBump(nRef, nObs, bump, 4.0, 0.16, 101L),
+        threads, adamEpochs, maxIterations, starts, probe);
+    runCase(out, "2D", SyntheticData.gaussianBump(new double[] {1.5, 0.0}, 0.25, nRef, nObs,
+        bump, 202L), threads, adamEpochs, maxIterations, starts, probe);
+    runCase(out, "5D", SyntheticData.gaussianBump(new double[] {1.5, 0.0, 0.0, 0.0, 0.0}, 0.25,
+        nRef, nObs, bump, 505L), threads, adamEpochs, maxIterations, starts, probe);
+  }
 
-    private static void warmUp(int threads) {
-        TrainingData data = SyntheticData.gaussianShift(new double[] {0.5, 0}, 20_000, 2_000, 1L);
-        FitSettings s = FitSettings.defaults().withThreads(threads)
-                .withStoppingRule(StoppingRule.defaults().withMaxIterations(150));
-        RatioTrainer.fit(data, s);
-        RatioTrainer.fit(data, s.withKernel(KernelChoice.SCALAR));
-        RatioTrainer.fit(data, s.withOptimiser(OptimiserKind.ADAM).withAdamEpochs(150));
-    }
+  private static void warmUp(int threads) {
+    TrainingData data = SyntheticData.gaussianShift(new double[] {0.5, 0}, 20_000, 2_000, 1L);
+    FitSettings s = FitSettings.defaults().withThreads(threads)
+        .withStoppingRule(StoppingRule.defaults().withMaxIterations(150));
+    RatioTrainer.fit(data, s);
+    RatioTrainer.fit(data, s.withKernel(KernelChoice.SCALAR));
+    RatioTrainer.fit(data, s.withOptimiser(OptimiserKind.ADAM).withAdamEpochs(150));
+  }
 
-    private static void runCase(PrintStream out, String name, TrainingData data, int threads,
-                                int adamEpochs, int maxIterations, int starts, double[] probe) {
-        FitSettings base = FitSettings.defaults().withThreads(threads).withHiddenWidths(List.of(5, 5))
-                .withClip(9.0).withSeed(1L)
-                .withStoppingRule(StoppingRule.defaults().withMaxIterations(maxIterations));
-        Architecture arch = new Architecture(data.features(), base.hiddenWidths(), base.activation());
-        int p = arch.parameterCount();
-        long events = (long) data.referenceCount() + data.observedCount();
-        double vectorEval = secondsPerEvaluation(data, arch, KernelChoice.AUTO, threads);
-        double scalarEval = secondsPerEvaluation(data, arch, KernelChoice.SCALAR, threads);
-        out.printf(Locale.ROOT, "%n[%s] events=%d parameters=%d%n", name, events, p);
-        out.printf(Locale.ROOT, "  evaluation: %s %.3f ms (%.3g events*params/s), scalar %.3f ms (%.3g events*params/s)%n",
-                Kernels.select(KernelChoice.AUTO).name(), vectorEval * 1e3, events * p / vectorEval,
-                scalarEval * 1e3, events * p / scalarEval);
-        if (probe != null) {
-            int h = arch.hiddenUnits();
-            long weights = 0;
-            long prop = 0;
-            long biases = 0;
-            for (int l = 1; l <= arch.layerCount(); l++) {
-                weights += (long) arch.width(l) * arch.width(l - 1);
-                biases += arch.width(l);
-                if (l >= 2 && l <= arch.hiddenWidths().size()) {
-                    prop += (long) arch.width(l) * arch.width(l - 1);
-                }
-            }
-            long ops = 2 * weights + biases + prop + 4L * h + 8;
-            double perEvent = (h + 1) * probe[0] + h * probe[1] + ops * probe[2];
-            double limit = events * perEvent * 1e-9 / threads;
-            out.printf(Locale.ROOT, "  arithmetic limit: %d exp + %d div + %d other ops per event -> %.3f ms per evaluation;"
-                    + " achieved/limit = %.2f%n", h + 1, h, ops, limit * 1e3, vectorEval / limit);
+  private static void runCase(PrintStream out, String name, TrainingData data, int threads,
+                int adamEpochs, int maxIterations, int starts, double[] probe) {
+    FitSettings base = FitSettings.defaults().withThreads(threads).withHiddenWidths(List.of(5, 5))
+        .withClip(9.0).withSeed(1L)
+        .withStoppingRule(StoppingRule.defaults().withMaxIterations(maxIterations));
+    Architecture arch = new Architecture(data.features(), base.hiddenWidths(), base.activation());
+    int p = arch.parameterCount();
+    long events = (long) data.referenceCount() + data.observedCount();
+    double vectorEval = secondsPerEvaluation(data, arch, KernelChoice.AUTO, threads);
+    double scalarEval = secondsPerEvaluation(data, arch, KernelChoice.SCALAR, threads);
+    out.printf(Locale.ROOT, "%n[%s] events=%d parameters=%d%n", name, events, p);
+    out.printf(Locale.ROOT, "  evaluation: %s %.3f ms (%.3g events*params/s), scalar %.3f ms (%.3g events*params/s)%n",
+        Kernels.select(KernelChoice.AUTO).name(), vectorEval * 1e3, events * p / vectorEval,
+        scalarEval * 1e3, events * p / scalarEval);
+    if (probe != null) {
+      int h = arch.hiddenUnits();
+      long weights = 0;
+      long prop = 0;
+      long biases = 0;
+      for (int l = 1; l <= arch.layerCount(); l++) {
+        weights += (long) arch.width(l) * arch.width(l - 1);
+        biases += arch.width(l);
+        if (l >= 2 && l <= arch.hiddenWidths().size()) {
+          prop += (long) arch.width(l) * arch.width(l - 1);
         }
-        FitResult lb = RatioTrainer.fit(data, base);
-        double lbSeconds = lb.elapsedSeconds();
-        out.printf(Locale.ROOT, "  loss at L-BFGS iteration (log): %s%n", progress(lb.log()));
-        out.printf(Locale.ROOT, "  projected L-BFGS: %.3f s, %d iterations, %d evaluations (%.3f ms each), t = %.4f,"
-                        + " loss = %.6f, converged=%s (%s), |pg|=%.2e%n",
-                lbSeconds, lb.iterations(), lb.lossEvaluations(), lbSeconds / lb.lossEvaluations() * 1e3,
-                lb.testStatistic(), lb.finalLoss(), lb.converged(), lb.stopReason(),
-                lb.starts().get(0).projectedGradientNorm());
-        if (starts > 1) {
-            FitResult lb4 = RatioTrainer.fit(data, base.withRestarts(starts));
-            out.printf(Locale.ROOT, "  projected L-BFGS, %d starts: %.3f s, %d evaluations, best t = %.4f, start losses %s%n",
-                    starts, lb4.elapsedSeconds(), lb4.lossEvaluations(), lb4.testStatistic(),
-                    java.util.Arrays.toString(lb4.restartLosses()));
-        }
-        for (double lr : new double[] {1e-3, 1e-2}) {
-            FitResult ad = RatioTrainer.fit(data, base.withOptimiser(OptimiserKind.ADAM)
-                    .withAdamEpochs(adamEpochs).withAdamLearningRate(lr));
-            out.printf(Locale.ROOT, "  Adam lr=%.0e, %d epochs: %.3f s (%.3f ms/epoch), t = %.4f, loss = %.6f, converged=%s%n",
-                    lr, adamEpochs, ad.elapsedSeconds(), ad.elapsedSeconds() / adamEpochs * 1e3,
-                    ad.testStatistic(), ad.finalLoss(), ad.converged());
-        }
+      }
+      long ops = 2 * weights + biases + prop + 4L * h + 8;
+      double perEvent = (h + 1) * probe[0] + h * probe[1] + ops * probe[2];
+      double limit = events * perEvent * 1e-9 / threads;
+      out.printf(Locale.ROOT, "  arithmetic limit: %d exp + %d div + %d other ops per event -> %.3f ms per evaluation;"
+          + " achieved/limit = %.2f%n", h + 1, h, ops, limit * 1e3, vectorEval / limit);
     }
+    FitResult lb = RatioTrainer.fit(data, base);
+    double lbSeconds = lb.elapsedSeconds();
+    out.printf(Locale.ROOT, "  loss at L-BFGS iteration (log): %s%n", progress(lb.log()));
+    out.printf(Locale.ROOT, "  projected L-BFGS: %.3f s, %d iterations, %d evaluations (%.3f ms each), t = %.4f,"
+            + " loss = %.6f, converged=%s (%s), |pg|=%.2e%n",
+        lbSeconds, lb.iterations(), lb.lossEvaluations(), lbSeconds / lb.lossEvaluations() * 1e3,
+        lb.testStatistic(), lb.finalLoss(), lb.converged(), lb.stopReason(),
+        lb.starts().get(0).projectedGradientNorm());
+    if (starts > 1) {
+      FitResult lb4 = RatioTrainer.fit(data, base.withRestarts(starts));
+      out.printf(Locale.ROOT, "  projected L-BFGS, %d starts: %.3f s, %d evaluations, best t = %.4f, start losses %s%n",
+          starts, lb4.elapsedSeconds(), lb4.lossEvaluations(), lb4.testStatistic(),
+          java.util.Arrays.toString(lb4.restartLosses()));
+    }
+    for (double lr : new double[] {1e-3, 1e-2}) {
+      FitResult ad = RatioTrainer.fit(data, base.withOptimiser(OptimiserKind.ADAM)
+          .withAdamEpochs(adamEpochs).withAdamLearningRate(lr));
+      out.printf(Locale.ROOT, "  Adam lr=%.0e, %d epochs: %.3f s (%.3f ms/epoch), t = %.4f, loss = %.6f, converged=%s%n",
+          lr, adamEpochs, ad.elapsedSeconds(), ad.elapsedSeconds() / adamEpochs * 1e3,
+          ad.testStatistic(), ad.finalLoss(), ad.converged());
+    }
+  }
 
-    /** A few (iteration, loss) pairs of a log. */
-    private static String progress(TrainingLog log) {
-        StringBuilder sb = new StringBuilder();
-        List<LogEntry> e = log.entries();
-        int step = Math.max(1, e.size() / 8);
-        for (int i = 0; i < e.size(); i += step) {
-            sb.append(String.format(Locale.ROOT, "%d:%.3f@%.1fs ", e.get(i).iteration(), e.get(i).loss(),
-                    e.get(i).elapsedSeconds()));
-        }
-        LogEntry last = e.get(e.size() - 1);
-        sb.append(String.format(Locale.ROOT, "%d:%.3f@%.1fs", last.iteration(), last.loss(), last.elapsedSeconds()));
-        return sb.toString();
+  /** A few (iteration, loss) pairs of a log. */
+  private static String progress(TrainingLog log) {
+    StringBuilder sb = new StringBuilder();
+    List<LogEntry> e = log.entries();
+    int step = Math.max(1, e.size() / 8);
+    for (int i = 0; i < e.size(); i += step) {
+      sb.append(String.format(Locale.ROOT, "%d:%.3f@%.1fs ", e.get(i).iteration(), e.get(i).loss(),
+          e.get(i).elapsedSeconds()));
     }
+    LogEntry last = e.get(e.size() - 1);
+    sb.append(String.format(Locale.ROOT, "%d:%.3f@%.1fs", last.iteration(), last.loss(), last.elapsedSeconds()));
+    return sb.toString();
+  }
 
-    private static double secondsPerEvaluation(TrainingData data, Architecture arch,
-                                               KernelChoice kernel, int threads) {
-        RatioTrainer.Problem problem = RatioTrainer.Problem.build(data, arch, LossKind.EXTENDED_LIKELIHOOD);
-        double[] theta = RatioTrainer.initialParameters(arch, 3L, 9.0);
-        double[] g = new double[theta.length];
-        try (Objective o = new Objective(problem.training(), Kernels.select(kernel), threads)) {
-            for (int i = 0; i < 20; i++) {
-                o.valueAndGradient(theta, g);
-            }
-            int reps = 60;
-            long t0 = System.nanoTime();
-            for (int i = 0; i < reps; i++) {
-                o.valueAndGradient(theta, g);
-            }
-            return (System.nanoTime() - t0) * 1e-9 / reps;
-        }
+  private static double secondsPerEvaluation(TrainingData data, Architecture arch,
+                        KernelChoice kernel, int threads) {
+    RatioTrainer.Problem problem = RatioTrainer.Problem.build(data, arch, LossKind.EXTENDED_LIKELIHOOD);
+    double[] theta = RatioTrainer.initialParameters(arch, 3L, 9.0);
+    double[] g = new double[theta.length];
+    try (Objective o = new Objective(problem.training(), Kernels.select(kernel), threads)) {
+      for (int i = 0; i < 20; i++) {
+        o.valueAndGradient(theta, g);
+      }
+      int reps = 60;
+      long t0 = System.nanoTime();
+      for (int i = 0; i < reps; i++) {
+        o.valueAndGradient(theta, g);
+      }
+      return (System.nanoTime() - t0) * 1e-9 / reps;
     }
+  }
 }

@@ -23,142 +23,142 @@ import java.util.List;
  * @param logCapacity      maximum number of training-log entries ≥ 2
  */
 public record FitSettings(List<Integer> hiddenWidths, Activation activation, LossKind loss,
-                          double clip, long seed, int threads, OptimiserKind optimiser,
-                          StoppingRule stoppingRule, int restarts, double adamLearningRate,
-                          int adamEpochs, int lbfgsMemory, KernelChoice kernel, int logCapacity) {
+             double clip, long seed, int threads, OptimiserKind optimiser,
+             StoppingRule stoppingRule, int restarts, double adamLearningRate,
+             int adamEpochs, int lbfgsMemory, KernelChoice kernel, int logCapacity) {
 
-    /** Validates every field. */
-    public FitSettings {
-        hiddenWidths = List.copyOf(hiddenWidths);
-        for (int w : hiddenWidths) {
-            if (w < 1) {
-                throw new IllegalArgumentException("hidden widths must be >= 1: " + hiddenWidths);
-            }
-        }
-        if (activation == null || loss == null || optimiser == null || stoppingRule == null
-                || kernel == null) {
-            throw new IllegalArgumentException("null setting");
-        }
-        if (!(clip > 0) || Double.isInfinite(clip)) {
-            throw new IllegalArgumentException("clip must be finite and > 0: " + clip);
-        }
-        if (threads < 1) {
-            throw new IllegalArgumentException("threads must be >= 1: " + threads);
-        }
-        if (restarts < 1) {
-            throw new IllegalArgumentException("restarts must be >= 1: " + restarts);
-        }
-        if (!(adamLearningRate > 0) || Double.isInfinite(adamLearningRate)) {
-            throw new IllegalArgumentException("adamLearningRate must be finite and > 0");
-        }
-        if (adamEpochs < 1) {
-            throw new IllegalArgumentException("adamEpochs must be >= 1: " + adamEpochs);
-        }
-        if (lbfgsMemory < 1) {
-            throw new IllegalArgumentException("lbfgsMemory must be >= 1: " + lbfgsMemory);
-        }
-        if (logCapacity < 2) {
-            throw new IllegalArgumentException("logCapacity must be >= 2: " + logCapacity);
-        }
+  /** Validates every field. */
+  public FitSettings {
+    hiddenWidths = List.copyOf(hiddenWidths);
+    for (int w : hiddenWidths) {
+      if (w < 1) {
+        throw new IllegalArgumentException("hidden widths must be >= 1: " + hiddenWidths);
+      }
     }
+    if (activation == null || loss == null || optimiser == null || stoppingRule == null
+        || kernel == null) {
+      throw new IllegalArgumentException("null setting");
+    }
+    if (!(clip > 0) || Double.isInfinite(clip)) {
+      throw new IllegalArgumentException("clip must be finite and > 0: " + clip);
+    }
+    if (threads < 1) {
+      throw new IllegalArgumentException("threads must be >= 1: " + threads);
+    }
+    if (restarts < 1) {
+      throw new IllegalArgumentException("restarts must be >= 1: " + restarts);
+    }
+    if (!(adamLearningRate > 0) || Double.isInfinite(adamLearningRate)) {
+      throw new IllegalArgumentException("adamLearningRate must be finite and > 0");
+    }
+    if (adamEpochs < 1) {
+      throw new IllegalArgumentException("adamEpochs must be >= 1: " + adamEpochs);
+    }
+    if (lbfgsMemory < 1) {
+      throw new IllegalArgumentException("lbfgsMemory must be >= 1: " + lbfgsMemory);
+    }
+    if (logCapacity < 2) {
+      throw new IllegalArgumentException("logCapacity must be >= 2: " + logCapacity);
+    }
+  }
 
-    /**
-     * The common case: widths [5, 5], sigmoid, extended likelihood, clip 9, seed 1, all available
-     * processors, projected L-BFGS with memory 10 to {@link StoppingRule#defaults()}, one start,
-     * Adam α = 1e−3 for 2,000 epochs if selected, automatic kernel, log of 1,000 entries.
-     */
-    public static FitSettings defaults() {
-        return new FitSettings(List.of(5, 5), Activation.SIGMOID, LossKind.EXTENDED_LIKELIHOOD,
-                9.0, 1L, Runtime.getRuntime().availableProcessors(), OptimiserKind.PROJECTED_LBFGS,
-                StoppingRule.defaults(), 1, 1e-3, 2000, 10, KernelChoice.AUTO, 1000);
-    }
+  /**
+   * The common case: widths [5, 5], sigmoid, extended likelihood, clip 9, seed 1, all available
+   * processors, projected L-BFGS with memory 10 to {@link StoppingRule#defaults()}, one start,
+   * Adam α = 1e−3 for 2,000 epochs if selected, automatic kernel, log of 1,000 entries.
+   */
+  public static FitSettings defaults() {
+    return new FitSettings(List.of(5, 5), Activation.SIGMOID, LossKind.EXTENDED_LIKELIHOOD,
+        9.0, 1L, Runtime.getRuntime().availableProcessors(), OptimiserKind.PROJECTED_LBFGS,
+        StoppingRule.defaults(), 1, 1e-3, 2000, 10, KernelChoice.AUTO, 1000);
+  }
 
-    /** Copy with other hidden widths. */
-    public FitSettings withHiddenWidths(List<Integer> v) {
-        return new FitSettings(v, activation, loss, clip, seed, threads, optimiser, stoppingRule,
-                restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel, logCapacity);
-    }
+  /** Copy with other hidden widths. */
+  public FitSettings withHiddenWidths(List<Integer> v) {
+    return new FitSettings(v, activation, loss, clip, seed, threads, optimiser, stoppingRule,
+        restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel, logCapacity);
+  }
 
-    /** Copy with another activation. */
-    public FitSettings withActivation(Activation v) {
-        return new FitSettings(hiddenWidths, v, loss, clip, seed, threads, optimiser, stoppingRule,
-                restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel, logCapacity);
-    }
+  /** Copy with another activation. */
+  public FitSettings withActivation(Activation v) {
+    return new FitSettings(hiddenWidths, v, loss, clip, seed, threads, optimiser, stoppingRule,
+        restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel, logCapacity);
+  }
 
-    /** Copy with another loss. */
-    public FitSettings withLoss(LossKind v) {
-        return new FitSettings(hiddenWidths, activation, v, clip, seed, threads, optimiser,
-                stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
-                logCapacity);
-    }
+  /** Copy with another loss. */
+  public FitSettings withLoss(LossKind v) {
+    return new FitSettings(hiddenWidths, activation, v, clip, seed, threads, optimiser,
+        stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
+        logCapacity);
+  }
 
-    /** Copy with another clip bound. */
-    public FitSettings withClip(double v) {
-        return new FitSettings(hiddenWidths, activation, loss, v, seed, threads, optimiser,
-                stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
-                logCapacity);
-    }
+  /** Copy with another clip bound. */
+  public FitSettings withClip(double v) {
+    return new FitSettings(hiddenWidths, activation, loss, v, seed, threads, optimiser,
+        stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
+        logCapacity);
+  }
 
-    /** Copy with another seed. */
-    public FitSettings withSeed(long v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, v, threads, optimiser,
-                stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
-                logCapacity);
-    }
+  /** Copy with another seed. */
+  public FitSettings withSeed(long v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, v, threads, optimiser,
+        stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
+        logCapacity);
+  }
 
-    /** Copy with another thread count. */
-    public FitSettings withThreads(int v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, v, optimiser,
-                stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
-                logCapacity);
-    }
+  /** Copy with another thread count. */
+  public FitSettings withThreads(int v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, v, optimiser,
+        stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
+        logCapacity);
+  }
 
-    /** Copy with another optimiser. */
-    public FitSettings withOptimiser(OptimiserKind v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, v,
-                stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
-                logCapacity);
-    }
+  /** Copy with another optimiser. */
+  public FitSettings withOptimiser(OptimiserKind v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, v,
+        stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel,
+        logCapacity);
+  }
 
-    /** Copy with another stopping rule. */
-    public FitSettings withStoppingRule(StoppingRule v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser, v,
-                restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel, logCapacity);
-    }
+  /** Copy with another stopping rule. */
+  public FitSettings withStoppingRule(StoppingRule v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser, v,
+        restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel, logCapacity);
+  }
 
-    /** Copy with another number of random starts. */
-    public FitSettings withRestarts(int v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
-                stoppingRule, v, adamLearningRate, adamEpochs, lbfgsMemory, kernel, logCapacity);
-    }
+  /** Copy with another number of random starts. */
+  public FitSettings withRestarts(int v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
+        stoppingRule, v, adamLearningRate, adamEpochs, lbfgsMemory, kernel, logCapacity);
+  }
 
-    /** Copy with another Adam learning rate. */
-    public FitSettings withAdamLearningRate(double v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
-                stoppingRule, restarts, v, adamEpochs, lbfgsMemory, kernel, logCapacity);
-    }
+  /** Copy with another Adam learning rate. */
+  public FitSettings withAdamLearningRate(double v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
+        stoppingRule, restarts, v, adamEpochs, lbfgsMemory, kernel, logCapacity);
+  }
 
-    /** Copy with another Adam epoch count. */
-    public FitSettings withAdamEpochs(int v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
-                stoppingRule, restarts, adamLearningRate, v, lbfgsMemory, kernel, logCapacity);
-    }
+  /** Copy with another Adam epoch count. */
+  public FitSettings withAdamEpochs(int v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
+        stoppingRule, restarts, adamLearningRate, v, lbfgsMemory, kernel, logCapacity);
+  }
 
-    /** Copy with another L-BFGS memory. */
-    public FitSettings withLbfgsMemory(int v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
-                stoppingRule, restarts, adamLearningRate, adamEpochs, v, kernel, logCapacity);
-    }
+  /** Copy with another L-BFGS memory. */
+  public FitSettings withLbfgsMemory(int v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
+        stoppingRule, restarts, adamLearningRate, adamEpochs, v, kernel, logCapacity);
+  }
 
-    /** Copy with another kernel choice. */
-    public FitSettings withKernel(KernelChoice v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
-                stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, v, logCapacity);
-    }
+  /** Copy with another kernel choice. */
+  public FitSettings withKernel(KernelChoice v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
+        stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, v, logCapacity);
+  }
 
-    /** Copy with another log capacity. */
-    public FitSettings withLogCapacity(int v) {
-        return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
-                stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel, v);
-    }
+  /** Copy with another log capacity. */
+  public FitSettings withLogCapacity(int v) {
+    return new FitSettings(hiddenWidths, activation, loss, clip, seed, threads, optimiser,
+        stoppingRule, restarts, adamLearningRate, adamEpochs, lbfgsMemory, kernel, v);
+  }
 }

@@ -10,10 +10,10 @@ package triage.core.ratio;
  * {@link #VECTOR} falls back to {@link #SCALAR} when the module is absent.
  */
 public enum KernelChoice {
-    /** Vector kernel when available, else plain Java. */
-    AUTO,
-    /** Plain-Java kernel. */
-    SCALAR,
-    /** Vector API kernel (falls back to plain Java when the module is absent). */
-    VECTOR
+  /** Vector kernel when available, else plain Java. */
+  AUTO,
+  /** Plain-Java kernel. */
+  SCALAR,
+  /** Vector API kernel (falls back to plain Java when the module is absent). */
+  VECTOR
 }

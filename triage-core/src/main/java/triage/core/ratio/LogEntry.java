@@ -9,5 +9,5 @@ package triage.core.ratio;
  * @param elapsedSeconds        seconds since the start of this random start
  */
 public record LogEntry(int iteration, double loss, double projectedGradientNorm,
-                       double elapsedSeconds) {
+            double elapsedSeconds) {
 }

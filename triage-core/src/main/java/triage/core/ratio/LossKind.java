@@ -20,8 +20,8 @@ package triage.core.ratio;
  * </ul>
  */
 public enum LossKind {
-    /** Extended (Poisson) likelihood-ratio loss; the network output is the log ratio. */
-    EXTENDED_LIKELIHOOD,
-    /** Class-balanced weighted binary cross entropy; the log ratio is the logit plus a constant. */
-    BINARY_CROSS_ENTROPY
+  /** Extended (Poisson) likelihood-ratio loss; the network output is the log ratio. */
+  EXTENDED_LIKELIHOOD,
+  /** Class-balanced weighted binary cross entropy; the log ratio is the logit plus a constant. */
+  BINARY_CROSS_ENTROPY
 }

@@ -20,140 +20,140 @@ import java.util.concurrent.atomic.AtomicInteger;
  * count and every kernel.
  */
 final class Objective implements DifferentiableFunction, AutoCloseable {
-    /** Events per reduction chunk (a multiple of {@link Kernel#TILE}). */
-    static final int CHUNK = 16 * Kernel.TILE;
+  /** Events per reduction chunk (a multiple of {@link Kernel#TILE}). */
+  static final int CHUNK = 16 * Kernel.TILE;
 
-    /** Events and coefficients. */
-    private final Batch batch;
-    /** Kernel used for every chunk. */
-    private final Kernel kernel;
-    /** Number of parameters. */
-    private final int p;
-    /** Number of chunks. */
-    private final int chunks;
-    /** Per-chunk partials: [chunk][0] loss, [chunk][1+q] gradient. */
-    private final double[][] partials;
-    /** One workspace per worker. */
-    private final Batch.Workspace[] workspaces;
-    /** Pool of the extra workers (the caller is worker 0), null with one thread. */
-    private final ExecutorService pool;
-    /** Tasks of workers 1..T−1. */
-    private final List<Callable<Void>> tasks;
-    /** Next chunk to take. */
-    private final AtomicInteger next = new AtomicInteger();
-    /** Parameters of the evaluation in progress. */
-    private double[] current;
-    /** Number of evaluations so far. */
-    private long evaluations;
+  /** Events and coefficients. */
+  private final Batch batch;
+  /** Kernel used for every chunk. */
+  private final Kernel kernel;
+  /** Number of parameters. */
+  private final int p;
+  /** Number of chunks. */
+  private final int chunks;
+  /** Per-chunk partials: [chunk][0] loss, [chunk][1+q] gradient. */
+  private final double[][] partials;
+  /** One workspace per worker. */
+  private final Batch.Workspace[] workspaces;
+  /** Pool of the extra workers (the caller is worker 0), null with one thread. */
+  private final ExecutorService pool;
+  /** Tasks of workers 1..T−1. */
+  private final List<Callable<Void>> tasks;
+  /** Next chunk to take. */
+  private final AtomicInteger next = new AtomicInteger();
+  /** Parameters of the evaluation in progress. */
+  private double[] current;
+  /** Number of evaluations so far. */
+  private long evaluations;
 
-    Objective(Batch batch, Kernel kernel, int threads) {
-        this.batch = batch;
-        this.kernel = kernel;
-        this.p = batch.arch.parameterCount();
-        this.chunks = (batch.n + CHUNK - 1) / CHUNK;
-        this.partials = new double[chunks][p + 1];
-        int workers = Math.max(1, Math.min(threads, chunks));
-        this.workspaces = new Batch.Workspace[workers];
-        for (int i = 0; i < workers; i++) {
-            workspaces[i] = new Batch.Workspace(batch.arch);
+  Objective(Batch batch, Kernel kernel, int threads) {
+    this.batch = batch;
+    this.kernel = kernel;
+    this.p = batch.arch.parameterCount();
+    this.chunks = (batch.n + CHUNK - 1) / CHUNK;
+    this.partials = new double[chunks][p + 1];
+    int workers = Math.max(1, Math.min(threads, chunks));
+    this.workspaces = new Batch.Workspace[workers];
+    for (int i = 0; i < workers; i++) {
+      workspaces[i] = new Batch.Workspace(batch.arch);
+    }
+    this.tasks = new ArrayList<>();
+    for (int i = 1; i < workers; i++) {
+      Batch.Workspace ws = workspaces[i];
+      tasks.add(() -> {
+        work(ws);
+        return null;
+      });
+    }
+    this.pool = workers > 1 ? Executors.newFixedThreadPool(workers - 1, r -> {
+      Thread t = new Thread(r, "ratio-worker");
+      t.setDaemon(true);
+      return t;
+    }) : null;
+  }
+
+  @Override
+  public int dimension() {
+    return p;
+  }
+
+  /** The batch evaluated. */
+  Batch batch() {
+    return batch;
+  }
+
+  /** Kernel name. */
+  String kernelName() {
+    return kernel.name();
+  }
+
+  /** Evaluations so far. */
+  long evaluations() {
+    return evaluations;
+  }
+
+  @Override
+  public double valueAndGradient(double[] theta, double[] gradient) {
+    current = theta;
+    next.set(0);
+    if (pool == null) {
+      work(workspaces[0]);
+    } else {
+      List<Future<Void>> futures = new ArrayList<>(tasks.size());
+      for (Callable<Void> task : tasks) {
+        futures.add(pool.submit(task));
+      }
+      work(workspaces[0]);
+      try {
+        for (Future<Void> f : futures) {
+          f.get();
         }
-        this.tasks = new ArrayList<>();
-        for (int i = 1; i < workers; i++) {
-            Batch.Workspace ws = workspaces[i];
-            tasks.add(() -> {
-                work(ws);
-                return null;
-            });
+      } catch (InterruptedException e) {
+        Thread.currentThread().interrupt();
+        throw new IllegalStateException("interrupted during evaluation", e);
+      } catch (ExecutionException e) {
+        throw new IllegalStateException("evaluation failed", e.getCause());
+      }
+    }
+    evaluations++;
+    double loss = 0;
+    for (int q = 0; q < p; q++) {
+      gradient[q] = 0;
+    }
+    for (int c = 0; c < chunks; c++) {
+      double[] part = partials[c];
+      loss += part[0];
+      for (int q = 0; q < p; q++) {
+        gradient[q] += part[q + 1];
+      }
+    }
+    return loss;
+  }
+
+  private void work(Batch.Workspace ws) {
+    double[] theta = current;
+    double[] lanes = ws.lanes;
+    for (int c = next.getAndIncrement(); c < chunks; c = next.getAndIncrement()) {
+      java.util.Arrays.fill(lanes, 0.0);
+      int start = c * CHUNK;
+      int end = Math.min(batch.n, start + CHUNK);
+      kernel.accumulate(batch, theta, start, end, ws);
+      double[] part = partials[c];
+      for (int q = 0; q <= p; q++) {
+        int o = q * Kernel.LANES;
+        double s = lanes[o];
+        for (int l = 1; l < Kernel.LANES; l++) {
+          s += lanes[o + l];
         }
-        this.pool = workers > 1 ? Executors.newFixedThreadPool(workers - 1, r -> {
-            Thread t = new Thread(r, "ratio-worker");
-            t.setDaemon(true);
-            return t;
-        }) : null;
+        part[q] = s;
+      }
     }
+  }
 
-    @Override
-    public int dimension() {
-        return p;
+  @Override
+  public void close() {
+    if (pool != null) {
+      pool.shutdownNow();
     }
-
-    /** The batch evaluated. */
-    Batch batch() {
-        return batch;
-    }
-
-    /** Kernel name. */
-    String kernelName() {
-        return kernel.name();
-    }
-
-    /** Evaluations so far. */
-    long evaluations() {
-        return evaluations;
-    }
-
-    @Override
-    public double valueAndGradient(double[] theta, double[] gradient) {
-        current = theta;
-        next.set(0);
-        if (pool == null) {
-            work(workspaces[0]);
-        } else {
-            List<Future<Void>> futures = new ArrayList<>(tasks.size());
-            for (Callable<Void> task : tasks) {
-                futures.add(pool.submit(task));
-            }
-            work(workspaces[0]);
-            try {
-                for (Future<Void> f : futures) {
-                    f.get();
-                }
-            } catch (InterruptedException e) {
-                Thread.currentThread().interrupt();
-                throw new IllegalStateException("interrupted during evaluation", e);
-            } catch (ExecutionException e) {
-                throw new IllegalStateException("evaluation failed", e.getCause());
-            }
-        }
-        evaluations++;
-        double loss = 0;
-        for (int q = 0; q < p; q++) {
-            gradient[q] = 0;
-        }
-        for (int c = 0; c < chunks; c++) {
-            double[] part = partials[c];
-            loss += part[0];
-            for (int q = 0; q < p; q++) {
-                gradient[q] += part[q + 1];
-            }
-        }
-        return loss;
-    }
-
-    private void work(Batch.Workspace ws) {
-        double[] theta = current;
-        double[] lanes = ws.lanes;
-        for (int c = next.getAndIncrement(); c < chunks; c = next.getAndIncrement()) {
-            java.util.Arrays.fill(lanes, 0.0);
-            int start = c * CHUNK;
-            int end = Math.min(batch.n, start + CHUNK);
-            kernel.accumulate(batch, theta, start, end, ws);
-            double[] part = partials[c];
-            for (int q = 0; q <= p; q++) {
-                int o = q * Kernel.LANES;
-                double s = lanes[o];
-                for (int l = 1; l < Kernel.LANES; l++) {
-                    s += lanes[o + l];
-                }
-                part[q] = s;
-            }
-        }
-    }
-
-    @Override
-    public void close() {
-        if (pool != null) {
-            pool.shutdownNow();
-        }
-    }
+  }
 }

@@ -14,8 +14,8 @@ package triage.core.ratio;
  * </ul>
  */
 public enum OptimiserKind {
-    /** Bounded quasi-Newton method respecting the clip box. */
-    PROJECTED_LBFGS,
-    /** Adam for a fixed epoch count, for comparison. */
-    ADAM
+  /** Bounded quasi-Newton method respecting the clip box. */
+  PROJECTED_LBFGS,
+  /** Adam for a fixed epoch count, for comparison. */
+  ADAM
 }

@@ -13,6 +13,6 @@ package triage.core.ratio;
  * @param log         bounded training log
  */
 record OptimiserOutcome(double[] parameters, double loss, int iterations, long evaluations,
-                        StopReason reason, boolean converged, double projectedGradientNorm,
-                        TrainingLog log) {
+            StopReason reason, boolean converged, double projectedGradientNorm,
+            TrainingLog log) {
 }

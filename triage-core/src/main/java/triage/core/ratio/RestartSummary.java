@@ -15,7 +15,7 @@ package triage.core.ratio;
  * @param elapsedSeconds        wall time of this start
  */
 public record RestartSummary(int index, long seed, double loss, double testStatistic,
-                             int iterations, long lossEvaluations, StopReason stopReason,
-                             boolean converged, double projectedGradientNorm,
-                             double elapsedSeconds) {
+               int iterations, long lossEvaluations, StopReason stopReason,
+               boolean converged, double projectedGradientNorm,
+               double elapsedSeconds) {
 }

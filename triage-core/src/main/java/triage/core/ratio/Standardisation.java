@@ -18,127 +18,127 @@ import java.util.Arrays;
  */
 public record Standardisation(double[] mean, double[] std) {
 
-    /** Validates and copies. */
-    public Standardisation {
-        if (mean.length != std.length || mean.length == 0) {
-            throw new IllegalArgumentException("mean and std must have the same positive length");
-        }
-        mean = mean.clone();
-        std = std.clone();
-        for (int k = 0; k < mean.length; k++) {
-            if (!Double.isFinite(mean[k]) || !Double.isFinite(std[k]) || !(std[k] > 0)) {
-                throw new IllegalArgumentException("invalid standardisation for feature " + k);
-            }
-        }
+  /** Validates and copies. */
+  public Standardisation {
+    if (mean.length != std.length || mean.length == 0) {
+      throw new IllegalArgumentException("mean and std must have the same positive length");
     }
+    mean = mean.clone();
+    std = std.clone();
+    for (int k = 0; k < mean.length; k++) {
+      if (!Double.isFinite(mean[k]) || !Double.isFinite(std[k]) || !(std[k] > 0)) {
+        throw new IllegalArgumentException("invalid standardisation for feature " + k);
+      }
+    }
+  }
 
-    /** Number of features. */
-    public int features() {
-        return mean.length;
-    }
+  /** Number of features. */
+  public int features() {
+    return mean.length;
+  }
 
-    /** Copy of the shifts. */
-    @Override
-    public double[] mean() {
-        return mean.clone();
-    }
+  /** Copy of the shifts. */
+  @Override
+  public double[] mean() {
+    return mean.clone();
+  }
 
-    /** Copy of the scales. */
-    @Override
-    public double[] std() {
-        return std.clone();
-    }
+  /** Copy of the scales. */
+  @Override
+  public double[] std() {
+    return std.clone();
+  }
 
-    /** Shift of feature k. */
-    double meanAt(int k) {
-        return mean[k];
-    }
+  /** Shift of feature k. */
+  double meanAt(int k) {
+    return mean[k];
+  }
 
-    /** Scale of feature k. */
-    double stdAt(int k) {
-        return std[k];
-    }
+  /** Scale of feature k. */
+  double stdAt(int k) {
+    return std[k];
+  }
 
-    /** Standardised value of x for feature k: (x − mean_k) / std_k. */
-    double apply(int k, double x) {
-        return (x - mean[k]) / std[k];
-    }
+  /** Standardised value of x for feature k: (x − mean_k) / std_k. */
+  double apply(int k, double x) {
+    return (x - mean[k]) / std[k];
+  }
 
-    /**
-     * Weighted moments of a feature-major sample (feature k of event i at {@code k·n + i}).
-     *
-     * @param features feature-major values, length nFeatures·n
-     * @param weights  event weights, length n, with positive sum
-     * @param nFeatures number of features
-     */
-    static Standardisation weighted(double[] features, double[] weights, int nFeatures) {
-        int n = weights.length;
-        double sw = compensatedSum(weights, 0, n);
-        if (!(sw > 0)) {
-            throw new IllegalArgumentException("sum of weights must be positive");
-        }
-        double[] m = new double[nFeatures];
-        double[] s = new double[nFeatures];
-        for (int k = 0; k < nFeatures; k++) {
-            int base = k * n;
-            double sum = 0;
-            double c = 0;
-            for (int i = 0; i < n; i++) {
-                double v = weights[i] * features[base + i];
-                double t = sum + v;
-                c += Math.abs(sum) >= Math.abs(v) ? (sum - t) + v : (v - t) + sum;
-                sum = t;
-            }
-            double mean = (sum + c) / sw;
-            double sq = 0;
-            double sqc = 0;
-            double lin = 0;
-            double linc = 0;
-            for (int i = 0; i < n; i++) {
-                double dx = features[base + i] - mean;
-                double v = weights[i] * dx;
-                double t = lin + v;
-                linc += Math.abs(lin) >= Math.abs(v) ? (lin - t) + v : (v - t) + lin;
-                lin = t;
-                double q = v * dx;
-                double u = sq + q;
-                sqc += Math.abs(sq) >= Math.abs(q) ? (sq - u) + q : (q - u) + sq;
-                sq = u;
-            }
-            double l = lin + linc;
-            double var = ((sq + sqc) - l * l / sw) / sw;
-            m[k] = mean;
-            s[k] = var > 0 && Double.isFinite(var) ? Math.sqrt(var) : 1.0;
-        }
-        return new Standardisation(m, s);
+  /**
+   * Weighted moments of a feature-major sample (feature k of event i at {@code k·n + i}).
+   *
+   * @param features feature-major values, length nFeatures·n
+   * @param weights  event weights, length n, with positive sum
+   * @param nFeatures number of features
+   */
+  static Standardisation weighted(double[] features, double[] weights, int nFeatures) {
+    int n = weights.length;
+    double sw = compensatedSum(weights, 0, n);
+    if (!(sw > 0)) {
+      throw new IllegalArgumentException("sum of weights must be positive");
     }
+    double[] m = new double[nFeatures];
+    double[] s = new double[nFeatures];
+    for (int k = 0; k < nFeatures; k++) {
+      int base = k * n;
+      double sum = 0;
+      double c = 0;
+      for (int i = 0; i < n; i++) {
+        double v = weights[i] * features[base + i];
+        double t = sum + v;
+        c += Math.abs(sum) >= Math.abs(v) ? (sum - t) + v : (v - t) + sum;
+        sum = t;
+      }
+      double mean = (sum + c) / sw;
+      double sq = 0;
+      double sqc = 0;
+      double lin = 0;
+      double linc = 0;
+      for (int i = 0; i < n; i++) {
+        double dx = features[base + i] - mean;
+        double v = weights[i] * dx;
+        double t = lin + v;
+        linc += Math.abs(lin) >= Math.abs(v) ? (lin - t) + v : (v - t) + lin;
+        lin = t;
+        double q = v * dx;
+        double u = sq + q;
+        sqc += Math.abs(sq) >= Math.abs(q) ? (sq - u) + q : (q - u) + sq;
+        sq = u;
+      }
+      double l = lin + linc;
+      double var = ((sq + sqc) - l * l / sw) / sw;
+      m[k] = mean;
+      s[k] = var > 0 && Double.isFinite(var) ? Math.sqrt(var) : 1.0;
+    }
+    return new Standardisation(m, s);
+  }
 
-    /** Neumaier-compensated sum of {@code a[from..to)}. */
-    static double compensatedSum(double[] a, int from, int to) {
-        double sum = 0;
-        double c = 0;
-        for (int i = from; i < to; i++) {
-            double v = a[i];
-            double t = sum + v;
-            c += Math.abs(sum) >= Math.abs(v) ? (sum - t) + v : (v - t) + sum;
-            sum = t;
-        }
-        return sum + c;
+  /** Neumaier-compensated sum of {@code a[from..to)}. */
+  static double compensatedSum(double[] a, int from, int to) {
+    double sum = 0;
+    double c = 0;
+    for (int i = from; i < to; i++) {
+      double v = a[i];
+      double t = sum + v;
+      c += Math.abs(sum) >= Math.abs(v) ? (sum - t) + v : (v - t) + sum;
+      sum = t;
     }
+    return sum + c;
+  }
 
-    @Override
-    public boolean equals(Object o) {
-        return o instanceof Standardisation other
-                && Arrays.equals(mean, other.mean) && Arrays.equals(std, other.std);
-    }
+  @Override
+  public boolean equals(Object o) {
+    return o instanceof Standardisation other
+        && Arrays.equals(mean, other.mean) && Arrays.equals(std, other.std);
+  }
 
-    @Override
-    public int hashCode() {
-        return 31 * Arrays.hashCode(mean) + Arrays.hashCode(std);
-    }
+  @Override
+  public int hashCode() {
+    return 31 * Arrays.hashCode(mean) + Arrays.hashCode(std);
+  }
 
-    @Override
-    public String toString() {
-        return "Standardisation[mean=" + Arrays.toString(mean) + ", std=" + Arrays.toString(std) + "]";
-    }
+  @Override
+  public String toString() {
+    return "Standardisation[mean=" + Arrays.toString(mean) + ", std=" + Arrays.toString(std) + "]";
+  }
 }

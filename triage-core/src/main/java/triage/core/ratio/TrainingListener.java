@@ -6,16 +6,16 @@ package triage.core.ratio;
  */
 @FunctionalInterface
 public interface TrainingListener {
-    /** A listener that does nothing. */
-    TrainingListener NONE = (start, iteration, loss, pg, parameters) -> { };
+  /** A listener that does nothing. */
+  TrainingListener NONE = (start, iteration, loss, pg, parameters) -> { };
 
-    /**
-     * @param start      index of the random start (0-based)
-     * @param iteration  iteration or epoch number
-     * @param loss       training loss at the current parameters
-     * @param projectedGradientNorm projected-gradient infinity norm there
-     * @param parameters a copy of the current parameters (the caller may keep it)
-     */
-    void onIteration(int start, int iteration, double loss, double projectedGradientNorm,
-                     double[] parameters);
+  /**
+   * @param start      index of the random start (0-based)
+   * @param iteration  iteration or epoch number
+   * @param loss       training loss at the current parameters
+   * @param projectedGradientNorm projected-gradient infinity norm there
+   * @param parameters a copy of the current parameters (the caller may keep it)
+   */
+  void onIteration(int start, int iteration, double loss, double projectedGradientNorm,
+           double[] parameters);
 }

@@ -21,13 +21,13 @@ import java.util.List;
  * @param starts          one summary per random start
  */
 public record TrainingSummary(FitSettings settings, int referenceCount, int observedCount,
-                              double expectedCount, double finalLoss, double testStatistic,
-                              boolean converged, StopReason stopReason, int iterations,
-                              long lossEvaluations, double elapsedSeconds, String kernel,
-                              TrainingLog log, List<RestartSummary> starts) {
+               double expectedCount, double finalLoss, double testStatistic,
+               boolean converged, StopReason stopReason, int iterations,
+               long lossEvaluations, double elapsedSeconds, String kernel,
+               TrainingLog log, List<RestartSummary> starts) {
 
-    /** Copies the list of starts. */
-    public TrainingSummary {
-        starts = List.copyOf(starts);
-    }
+  /** Copies the list of starts. */
+  public TrainingSummary {
+    starts = List.copyOf(starts);
+  }
 }

@@ -5,8 +5,8 @@ package triage.core.ratio;
  * their sum must be positive.
  */
 public enum WeightPolicy {
-    /** Every reference weight must be strictly positive. */
-    POSITIVE_ONLY,
-    /** Negative (and zero) weights are allowed, as produced by some event generators. */
-    ALLOW_NEGATIVE
+  /** Every reference weight must be strictly positive. */
+  POSITIVE_ONLY,
+  /** Negative (and zero) weights are allowed, as produced by some event generators. */
+  ALLOW_NEGATIVE
 }

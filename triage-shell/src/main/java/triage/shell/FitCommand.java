@@ -1,0 +1,256 @@
+package triage.shell;
+
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.nio.file.Path;
+import java.time.Instant;
+import java.time.temporal.ChronoUnit;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.concurrent.Callable;
+import picocli.CommandLine;
+import picocli.CommandLine.ArgGroup;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+import triage.core.provenance.ToolVersion;
+import triage.core.ratio.Activation;
+import triage.core.ratio.FitResult;
+import triage.core.ratio.FitSettings;
+import triage.core.ratio.LossKind;
+import triage.core.ratio.OptimiserKind;
+import triage.core.ratio.RatioModel;
+import triage.core.ratio.RatioTrainer;
+import triage.core.ratio.StoppingRule;
+import triage.core.ratio.TrainingData;
+import triage.core.ratio.WeightPolicy;
+import triage.core.sample.InputException;
+import triage.core.sample.Role;
+import triage.index.EventStore;
+import triage.index.Manifest;
+
+/** {@code triage fit}: learns the observed/reference log density ratio and scores every event. */
+@Command(name = "fit", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class, sortOptions = false,
+    description = {"Fit the ratio model f(x) ≈ log[n_observed(x)/n_reference(x)] on the index's observed and "
+        + "reference samples, store it as a new model version, and score every event of every sample "
+        + "(column score:VERSION).",
+        "Loss: L = Σ_ref w (e^f − 1) − Σ_obs f with the reference normalised to the observed count, parameters "
+            + "held in [−clip, clip]; the test statistic is t = −2 min L."},
+    footer = ExitCodes.FOOTER)
+public final class FitCommand implements Callable<Integer> {
+  /** Filled by picocli. */
+  @CommandLine.Spec
+  CommandLine.Model.CommandSpec spec;
+
+  /** The index folder. */
+  @Option(names = "--index", required = true, paramLabel = "DIR", description = "The index folder.")
+  Path index;
+
+  /** Model options. */
+  @ArgGroup(exclusive = false, heading = "%nModel:%n")
+  ModelOptions model = new ModelOptions();
+
+  /** Training options. */
+  @ArgGroup(exclusive = false, heading = "%nTraining:%n")
+  TrainingOptions training = new TrainingOptions();
+
+  /** Version name. */
+  @Option(names = "--version-name", paramLabel = "NAME",
+      description = "Name of the new model version (default: m1, m2, … the next free one).")
+  String versionName;
+
+  /** JSON output. */
+  @Option(names = "--json", description = "Print exactly one JSON object on stdout (fields: docs/json.md).")
+  boolean json;
+
+  /** Model options. */
+  static final class ModelOptions {
+    /** Hidden layers. */
+    @Option(names = "--layers", split = ",", defaultValue = "5,5", paramLabel = "W,...",
+        description = "Hidden layer widths (default: ${DEFAULT-VALUE}).")
+    List<Integer> layers;
+
+    /** Activation. */
+    @Option(names = "--activation", defaultValue = "sigmoid", paramLabel = "sigmoid|tanh",
+        description = "Hidden activation (default: ${DEFAULT-VALUE}).")
+    Activation activation;
+
+    /** Loss. */
+    @Option(names = "--loss", defaultValue = "extended", paramLabel = "extended|cross-entropy",
+        description = "extended: the extended-likelihood ratio loss (default); cross-entropy: weighted binary "
+            + "cross-entropy, converted to the same log ratio and t.")
+    String loss;
+
+    /** Clip. */
+    @Option(names = "--clip", defaultValue = "9", paramLabel = "C",
+        description = "Weight clipping: every parameter held in [-C, C] (default: ${DEFAULT-VALUE}).")
+    double clip;
+  }
+
+  /** Training options. */
+  static final class TrainingOptions {
+    /** Optimiser. */
+    @Option(names = "--optimiser", defaultValue = "lbfgs", paramLabel = "lbfgs|adam",
+        description = "Projected L-BFGS in the clip box (default) or Adam for a fixed number of epochs.")
+    String optimiser;
+
+    /** Iteration cap. */
+    @Option(names = "--max-iterations", defaultValue = "5000", paramLabel = "N",
+        description = "Iteration cap of L-BFGS (default: ${DEFAULT-VALUE}).")
+    int maxIterations;
+
+    /** Relative tolerance. */
+    @Option(names = "--tolerance", defaultValue = "1e-8", paramLabel = "X",
+        description = "Converged when the relative loss change over the window is below X (default: "
+            + "${DEFAULT-VALUE}) ...")
+    double tolerance;
+
+    /** Gradient tolerance. */
+    @Option(names = "--gradient-tolerance", defaultValue = "1e-2", paramLabel = "G",
+        description = "... and the projected-gradient norm is below G (default: ${DEFAULT-VALUE}).")
+    double gradientTolerance;
+
+    /** Epochs. */
+    @Option(names = "--epochs", defaultValue = "2000", paramLabel = "N",
+        description = "Adam epochs (default: ${DEFAULT-VALUE}).")
+    int epochs;
+
+    /** Learning rate. */
+    @Option(names = "--learning-rate", defaultValue = "1e-3", paramLabel = "A",
+        description = "Adam step size (default: ${DEFAULT-VALUE}).")
+    double learningRate;
+
+    /** Restarts. */
+    @Option(names = "--starts", defaultValue = "1", paramLabel = "N",
+        description = "Random starts; the lowest loss is kept (default: ${DEFAULT-VALUE}).")
+    int starts;
+
+    /** Seed. */
+    @Option(names = "--seed", defaultValue = "1", paramLabel = "N",
+        description = "Seed of the initial parameters (default: ${DEFAULT-VALUE}).")
+    long seed;
+
+    /** Threads. */
+    @Option(names = "--threads", paramLabel = "N", description = "Threads (default: all processors).")
+    Integer threads;
+  }
+
+  @Override
+  public Integer call() throws Exception {
+    Output o = new Output(spec, json);
+    FitSettings settings = settings();
+    try (EventStore store = EventStore.open(index)) {
+      Manifest m = store.manifest();
+      String observed = sampleOf(m, Role.OBSERVED);
+      String reference = sampleOf(m, Role.REFERENCE);
+      List<String> features = m.spec().columns().features();
+      double[] ref = featureMajor(store.columns(reference, features));
+      double[] refW = store.weights(reference);
+      double[] obs = featureMajor(store.columns(observed, features));
+      boolean negative = m.sample(reference).negativeWeights() > 0 || m.sample(reference).zeroWeights() > 0;
+      TrainingData data = new TrainingData(features, ref, refW, obs,
+          negative ? WeightPolicy.ALLOW_NEGATIVE : WeightPolicy.POSITIVE_ONLY, java.util.OptionalDouble.empty());
+      o.note("fitting %s on %d observed and %d reference events (%s, clip %s, %s) ...", settings.hiddenWidths(),
+          m.sample(observed).events(), m.sample(reference).events(), settings.activation(), settings.clip(),
+          settings.optimiser());
+      FitResult fit = RatioTrainer.fit(data, settings);
+      RatioModel model = fit.model();
+      String version = versionName != null ? versionName : nextVersion(m);
+      double[] scores = new double[(int) m.totalEvents()];
+      int threads = settings.threads();
+      for (Manifest.Sample s : m.samples()) {
+        double[] x = featureMajor(store.columns(s.name(), features));
+        double[] f = model.scoreAll(x, (int) s.events(), threads);
+        System.arraycopy(f, 0, scores, (int) s.firstRow(), f.length);
+      }
+      ObjectNode doc = (ObjectNode) Output.JSON.readTree(model.toJson());
+      ObjectNode provenance = doc.putObject("provenance");
+      provenance.put("tool", "triage " + ToolVersion.get());
+      provenance.put("indexId", m.indexId());
+      provenance.put("version", version);
+      provenance.put("created", Instant.now().truncatedTo(ChronoUnit.SECONDS).toString());
+      provenance.put("observedSample", observed);
+      provenance.put("observedSha256", m.sample(observed).sha256());
+      provenance.put("referenceSample", reference);
+      provenance.put("referenceSha256", m.sample(reference).sha256());
+      store.addScores(version, scores, Output.JSON.writeValueAsString(doc));
+      o.say("model %s: t = %.4f, %d parameters, %s after %d iterations (%d loss evaluations), %.1f s", version,
+          fit.testStatistic(), model.parameterCount(), fit.converged() ? "converged" : "NOT converged ("
+              + fit.stopReason() + ")", fit.iterations(), fit.lossEvaluations(), fit.elapsedSeconds());
+      if (!fit.converged()) {
+        o.say("note: t is only comparable with toys fitted to the same stopping rule; a fit that did not converge "
+            + "understates t.");
+      }
+      o.say("scores of every event stored as column score:%s", version);
+      Map<String, Object> result = new LinkedHashMap<>();
+      result.put("command", "fit");
+      result.put("tool", "triage " + ToolVersion.get());
+      result.put("index", index.toString());
+      result.put("version", version);
+      result.put("testStatistic", fit.testStatistic());
+      result.put("finalLoss", fit.finalLoss());
+      result.put("parameters", model.parameterCount());
+      result.put("converged", fit.converged());
+      result.put("stopReason", fit.stopReason().toString());
+      result.put("iterations", fit.iterations());
+      result.put("lossEvaluations", fit.lossEvaluations());
+      result.put("seconds", fit.elapsedSeconds());
+      result.put("startLosses", fit.restartLosses());
+      result.put("settings", settings);
+      o.result(result);
+    }
+    return ExitCodes.OK;
+  }
+
+  private FitSettings settings() {
+    OptimiserKind optimiser = switch (training.optimiser) {
+      case "lbfgs" -> OptimiserKind.PROJECTED_LBFGS;
+      case "adam" -> OptimiserKind.ADAM;
+      default -> throw new CommandLine.ParameterException(spec.commandLine(),
+          "--optimiser must be lbfgs or adam, not '" + training.optimiser + "'");
+    };
+    LossKind loss = switch (model.loss) {
+      case "extended" -> LossKind.EXTENDED_LIKELIHOOD;
+      case "cross-entropy" -> LossKind.BINARY_CROSS_ENTROPY;
+      default -> throw new CommandLine.ParameterException(spec.commandLine(),
+          "--loss must be extended or cross-entropy, not '" + model.loss + "'");
+    };
+    try {
+      FitSettings s = FitSettings.defaults().withHiddenWidths(model.layers).withActivation(model.activation)
+          .withLoss(loss).withClip(model.clip).withSeed(training.seed).withOptimiser(optimiser)
+          .withRestarts(training.starts).withAdamEpochs(training.epochs)
+          .withAdamLearningRate(training.learningRate)
+          .withStoppingRule(StoppingRule.defaults().withMaxIterations(training.maxIterations)
+              .withRelativeTolerance(training.tolerance).withGradientTolerance(training.gradientTolerance));
+      return training.threads == null ? s : s.withThreads(training.threads);
+    } catch (IllegalArgumentException e) {
+      throw new CommandLine.ParameterException(spec.commandLine(), e.getMessage());
+    }
+  }
+
+  /** Feature-major flattening: value of feature k for event i at k·n + i. */
+  static double[] featureMajor(double[][] columns) {
+    int n = columns.length == 0 ? 0 : columns[0].length;
+    double[] out = new double[columns.length * n];
+    for (int k = 0; k < columns.length; k++) {
+      System.arraycopy(columns[k], 0, out, k * n, n);
+    }
+    return out;
+  }
+
+  private static String nextVersion(Manifest m) {
+    for (int i = 1; ; i++) {
+      if (m.model("m" + i) == null) {
+        return "m" + i;
+      }
+    }
+  }
+
+  private static String sampleOf(Manifest m, Role role) {
+    for (Manifest.Sample s : m.samples()) {
+      if (s.role() == role) {
+        return s.name();
+      }
+    }
+    throw new InputException(null, "the index has no " + role + " sample to fit");
+  }
+}
