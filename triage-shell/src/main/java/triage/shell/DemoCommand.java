@@ -16,8 +16,9 @@ import triage.index.IngestReport;
 /** {@code triage demo}: the main job on built-in demo data. */
 @Command(name = "demo", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
     description = {"Run the job on built-in demo data: generate the fictional photon-plus-jet samples, ingest them "
-        + "into an event index and summarise it.",
-        "(Fitting, calibration, drill-down, region and follow-up steps join as they are built.)"},
+        + "into an event index, fit the ratio model, select the events where the observed density is at least "
+        + "three times the reference's, and rank the variables that set them apart.",
+        "(Calibration, artefact checks, region and follow-up steps join as they are built.)"},
     footer = ExitCodes.FOOTER)
 public final class DemoCommand implements Callable<Integer> {
   /** Filled by picocli. */
@@ -33,6 +34,11 @@ public final class DemoCommand implements Callable<Integer> {
   @Option(names = "--small", description = "Use the small scenario (a tenth of the events).")
   boolean small;
 
+  /** Fit iteration cap. */
+  @Option(names = "--max-iterations", defaultValue = "1500", paramLabel = "N",
+      description = "Iteration cap of the demo's fit (default: ${DEFAULT-VALUE}).")
+  int maxIterations;
+
   /** JSON output. */
   @Option(names = "--json", description = "Print exactly one JSON object on stdout (fields: docs/json.md).")
   boolean json;
@@ -44,17 +50,29 @@ public final class DemoCommand implements Callable<Integer> {
     DemoScenario.Settings s = small ? DemoScenario.Settings.small() : DemoScenario.Settings.standard();
     Path samples = out.resolve("samples");
     Path index = out.resolve("index");
-    o.note("[1/3] generating the demo samples in %s (seed %d)", samples, s.seed());
+    o.note("[1/5] generating the demo samples in %s (seed %d)", samples, s.seed());
     DemoScenario.Written w = DemoScenario.write(samples, s);
-    o.note("[2/3] ingesting into %s", index);
+    o.note("[2/5] ingesting into %s", index);
     IngestReport report = Ingest.run(w.sampleSpec(), index,
         Ingest.Options.defaults().with(ReadOptions.strict()).withReplace(true), line -> o.note("      " + line));
-    o.note("[3/3] summary");
-    int code = Main.run(new String[] {"info", "--index", index.toString()}, json
-        ? spec.commandLine().getErr() : spec.commandLine().getOut(), spec.commandLine().getErr());
+    java.io.PrintWriter human = json ? spec.commandLine().getErr() : spec.commandLine().getOut();
+    java.io.PrintWriter err = spec.commandLine().getErr();
+    o.note("[3/5] summary");
+    int code = Main.run(new String[] {"info", "--index", index.toString()}, human, err);
+    o.note("[4/5] fitting the ratio model (iteration cap %d)", maxIterations);
+    code = Math.max(code, Main.run(new String[] {"fit", "--index", index.toString(), "--max-iterations",
+        String.valueOf(maxIterations)}, human, err));
+    String where = "score:m1 > " + Math.log(3);
+    o.note("[5/5] the events with f > log 3, and what sets them apart");
+    code = Math.max(code, Main.run(new String[] {"select", "--index", index.toString(), "--where", where}, human,
+        err));
+    code = Math.max(code, Main.run(new String[] {"rank", "--index", index.toString(), "--where", where,
+        "--permutations", "100"}, human, err));
     double seconds = (System.nanoTime() - start) / 1e9;
     o.say("");
-    o.say("demo done in %.1f s. Next: triage info --index %s", seconds, index);
+    o.say("demo done in %.1f s. Look further with, for example:", seconds);
+    o.say("  triage select --index %s --where \"score:m1 > 1 AND sector = '11'\"", index);
+    o.say("  triage rank --index %s --where \"m_gj BETWEEN 700 AND 800\"", index);
     Map<String, Object> m = new LinkedHashMap<>();
     m.put("command", "demo");
     m.put("tool", "triage " + ToolVersion.get());

@@ -187,7 +187,7 @@ class CliTest {
 
   @Test
   void smallDemoRunsEndToEnd() throws IOException {
-    Run r = run("demo", "--small", "--out", dir.resolve("demo").toString(), "--json");
+    Run r = run("demo", "--small", "--max-iterations", "200", "--out", dir.resolve("demo").toString(), "--json");
     assertEquals(0, r.code(), r.err());
     JsonNode j = JSON.readTree(r.out());
     assertEquals("demo", j.get("command").asText());

@@ -25,7 +25,7 @@ import triage.shell.VersionProvider;
 /** {@code triage bench}: benchmarks that print figures. */
 @Command(name = "bench", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
     description = "Benchmarks on generated data; they print figures (run them on a quiet machine).",
-    subcommands = {BenchCommand.IngestBench.class, BenchCommand.SelectBench.class}, footer = ExitCodes.FOOTER)
+    subcommands = {BenchCommand.IngestBench.class, BenchCommand.SelectBench.class, BenchCommand.FitBench.class}, footer = ExitCodes.FOOTER)
 public final class BenchCommand implements Runnable {
   /** Filled by picocli. */
   @CommandLine.Spec
@@ -177,6 +177,48 @@ public final class BenchCommand implements Runnable {
       } finally {
         cleanUp(folder);
       }
+      return ExitCodes.OK;
+    }
+  }
+
+  /** {@code triage bench fit}. */
+  @Command(name = "fit", mixinStandardHelpOptions = true,
+      description = {"Ratio-model fits on generated 1D, 2D and 5D data (d-5-5-1 sigmoid, clip 9): seconds per fit "
+          + "to the stopping rule, loss evaluations, t, events·parameters per second per evaluation against the "
+          + "machine's measured arithmetic limit, and Adam at a fixed epoch count."})
+  static final class FitBench implements Callable<Integer> {
+    /** Threads. */
+    @Option(names = "--threads", defaultValue = "2", paramLabel = "N", description = "Threads (default: ${DEFAULT-VALUE}).")
+    int threads;
+
+    /** Reference events. */
+    @Option(names = "--reference", defaultValue = "200000", paramLabel = "N",
+        description = "Reference events (default: ${DEFAULT-VALUE}).")
+    int reference;
+
+    /** Observed events. */
+    @Option(names = "--observed", defaultValue = "2000", paramLabel = "N",
+        description = "Observed events (default: ${DEFAULT-VALUE}).")
+    int observed;
+
+    /** Adam epochs. */
+    @Option(names = "--epochs", defaultValue = "2000", paramLabel = "N",
+        description = "Adam epochs (default: ${DEFAULT-VALUE}).")
+    int epochs;
+
+    /** Iteration cap. */
+    @Option(names = "--max-iterations", defaultValue = "5000", paramLabel = "N",
+        description = "L-BFGS iteration cap (default: ${DEFAULT-VALUE}).")
+    int maxIterations;
+
+    /** Starts. */
+    @Option(names = "--starts", defaultValue = "4", paramLabel = "N",
+        description = "Random starts of the extra multi-start fit (default: ${DEFAULT-VALUE}; 1 skips it).")
+    int starts;
+
+    @Override
+    public Integer call() {
+      triage.core.ratio.FitBenchmark.run(System.out, threads, reference, observed, epochs, maxIterations, starts);
       return ExitCodes.OK;
     }
   }
