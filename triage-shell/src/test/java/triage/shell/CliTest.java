@@ -170,6 +170,40 @@ class CliTest {
   }
 
   @Test
+  void regionIsFrozenAndFollowedUpWithTheOverlapGuard() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
+        .code());
+    Path region = dir.resolve("region.json");
+    Run freeze = run("region", "--index", index.toString(), "--where", "m > 95 AND run = 5", "--out",
+        region.toString(), "--json");
+    assertEquals(0, freeze.code(), freeze.err());
+    assertTrue(Files.readString(region).contains("\"optimisedOnDiscoveryData\" : true"));
+    // Independent follow-up: new ids. By hand: reference rows 1 (w 2) and 3 (w 1) pass; observed 21, 22 pass.
+    Files.writeString(dir.resolve("fref.csv"), "event,run,m,pt,w\n1,5,100,20,2\n2,6,120,30,1.5\n3,5,99,20,1\n");
+    Files.writeString(dir.resolve("fobs.csv"), "event,run,m,pt\n21,5,101,21\n22,5,99,22\n23,6,98,23\n");
+    Run f = run("followup", "--region", region.toString(), "--reference", dir.resolve("fref.csv").toString(),
+        "--weight", "w", "--observed", dir.resolve("fobs.csv").toString(), "--json");
+    assertEquals(0, f.code(), f.err());
+    JsonNode j = JSON.readTree(f.out()).get("result");
+    assertEquals(2, j.get("observed").asLong());
+    assertEquals(3.0, j.get("expected").asDouble(), 0);
+    assertEquals(Math.sqrt(5), j.get("statError").asDouble(), 1e-15);
+    // Reusing the discovery observed file is refused, and allowed only on request (and recorded).
+    Run reuse = run("followup", "--region", region.toString(), "--reference", dir.resolve("fref.csv").toString(),
+        "--weight", "w", "--observed", dir.resolve("obs.csv").toString());
+    assertEquals(ExitCodes.INPUT, reuse.code());
+    assertTrue(reuse.err().contains("also belong to the discovery sample"), reuse.err());
+    Run forced = run("followup", "--region", region.toString(), "--reference", dir.resolve("fref.csv").toString(),
+        "--weight", "w", "--observed", dir.resolve("obs.csv").toString(), "--allow-overlap", "--json");
+    assertEquals(0, forced.code(), forced.err());
+    assertEquals(2, JSON.readTree(forced.out()).get("overlappingIds").asLong());
+    assertTrue(JSON.readTree(forced.out()).get("overlapAllowed").asBoolean());
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");

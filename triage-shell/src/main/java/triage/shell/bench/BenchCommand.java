@@ -116,7 +116,7 @@ public final class BenchCommand implements Runnable {
 
   /** {@code triage bench select}. */
   @Command(name = "select", mixinStandardHelpOptions = true,
-      description = "Box selection (about 1% of events) plus count and a 100-bin histogram: median and p95 ms.")
+      description = "Box selection (about 1%% of events) plus count and a 100-bin histogram: median and p95 ms.")
   static final class SelectBench extends Common implements Callable<Integer> {
     /** Filled by picocli. */
     @CommandLine.Spec

@@ -1,0 +1,119 @@
+package triage.core.region;
+
+import java.util.LinkedHashMap;
+import java.util.Map;
+import triage.core.inference.ClsUpperLimit;
+import triage.core.inference.CountingSignificance;
+import triage.core.inference.Significance;
+
+/**
+ * The statistics of a frozen region on independent data: a cut-and-count with n observed events, b expected from
+ * the reference with its MC statistical error and systematic variations.
+ *
+ * <ul>
+ *   <li>σ_syst: per variation the larger of |b_up − b| and |b_down − b|, added in quadrature over variations;
+ *   σ_b = √(σ_stat² + σ_syst²);</li>
+ *   <li>Z_Bi and its one-sided p: Cousins, Linnemann and Tucker, NIM A 595 (2008) 480, with τ = b/σ_b²;</li>
+ *   <li>Z_A: the profile-likelihood (Asimov) significance with σ_b of Cowan, Cranmer, Gross and Vitells,
+ *   EPJ C 71 (2011) 1554, evaluated at s = n − b (when positive);</li>
+ *   <li>the 95% CL upper limit on the signal count by CLs (Read, J. Phys. G 28 (2002) 2693), with the
+ *   background uncertainty averaged over a truncated Gaussian;</li>
+ *   <li>compatibility with the discovery: the discovery excess scaled by the ratio of expected yields,
+ *   s_pred = (n_d − b_d)·b/b_d, compared with n − b as z = (n − b − s_pred)/√(b + s_pred + σ_b²) (Gaussian
+ *   approximation, stated as such);</li>
+ *   <li>growth for 5σ: the factor k by which the follow-up sample would have to grow (n, b, σ_stat scale with k,
+ *   relative systematics stay) for the median Asimov significance of s_pred·k to reach 5.</li>
+ * </ul>
+ *
+ * @param observed n
+ * @param expected b
+ * @param statError σ_stat = √Σw²
+ * @param systError σ_syst
+ * @param totalError σ_b
+ * @param variations per variation {up, down} expected yields
+ * @param zBi Z_Bi
+ * @param pBi its one-sided p-value
+ * @param zAsimov Z_A at s = n − b (NaN when n ≤ b)
+ * @param clsUpperLimit95 the 95% CL CLs upper limit on the signal count
+ * @param predictedSignal s_pred from the discovery
+ * @param compatibilityZ z of the follow-up excess against s_pred
+ * @param growthFor5Sigma k (NaN when s_pred ≤ 0)
+ */
+public record FollowUp(long observed, double expected, double statError, double systError, double totalError,
+    Map<String, double[]> variations, double zBi, double pBi, double zAsimov, double clsUpperLimit95,
+    double predictedSignal, double compatibilityZ, double growthFor5Sigma) {
+
+  /**
+   * Computes the follow-up statistics.
+   *
+   * @param n observed events in the region
+   * @param b expected reference yield
+   * @param statError √Σw² of the reference in the region
+   * @param variations per variation {b_up, b_down}
+   * @param discoveryObserved n_d
+   * @param discoveryExpected b_d
+   */
+  public static FollowUp compute(long n, double b, double statError, Map<String, double[]> variations,
+      long discoveryObserved, double discoveryExpected) {
+    double syst2 = 0;
+    for (double[] v : variations.values()) {
+      double d = Math.max(Math.abs(v[0] - b), Math.abs(v[1] - b));
+      syst2 += d * d;
+    }
+    double syst = Math.sqrt(syst2);
+    double sigma = Math.sqrt(statError * statError + syst2);
+    double zBi = Double.NaN;
+    double pBi = Double.NaN;
+    if (b > 0 && sigma > 0) {
+      var r = CountingSignificance.zBiFromBackground(n, b, sigma);
+      zBi = r.z();
+      pBi = r.pValue();
+    } else if (b > 0) {
+      double z = CountingSignificance.likelihoodRatioZ(n, b);
+      zBi = z;
+      pBi = Significance.pFromZ(z);
+    }
+    double zA = n > b && b > 0 ? CountingSignificance.asimovZ(n - b, b, sigma) : Double.NaN;
+    double limit = b > 0 ? ClsUpperLimit.withDefaults().withConfidenceLevel(0.95)
+        .upperLimit((int) Math.min(n, Integer.MAX_VALUE), b, sigma).upperLimit() : Double.NaN;
+    double sPred = discoveryExpected > 0 ? (discoveryObserved - discoveryExpected) * b / discoveryExpected
+        : Double.NaN;
+    double compat = (n - b - sPred) / Math.sqrt(b + Math.max(0, sPred) + sigma * sigma);
+    double growth = growthFor5Sigma(sPred, b, statError, syst);
+    return new FollowUp(n, b, statError, syst, sigma, new LinkedHashMap<>(variations), zBi, pBi, zA, limit, sPred,
+        compat, growth);
+  }
+
+  /**
+   * The smallest k with Z_A(k·s, k·b, σ(k)) ≥ 5, where σ(k)² = k·σ_stat² + (k·σ_syst)², by bisection on a
+   * doubling bracket; NaN when s ≤ 0 or when even k = 1e6 does not reach 5 (systematics dominate).
+   */
+  static double growthFor5Sigma(double s, double b, double statError, double systError) {
+    if (!(s > 0) || !(b > 0)) {
+      return Double.NaN;
+    }
+    java.util.function.DoubleUnaryOperator z = k -> CountingSignificance.asimovZ(k * s, k * b,
+        Math.sqrt(k * statError * statError + k * k * systError * systError));
+    if (z.applyAsDouble(1) >= 5) {
+      return 1;
+    }
+    double lo = 1;
+    double hi = 2;
+    while (z.applyAsDouble(hi) < 5) {
+      lo = hi;
+      hi *= 2;
+      if (hi > 1e6) {
+        return Double.NaN;
+      }
+    }
+    for (int i = 0; i < 100 && hi - lo > 1e-9 * hi; i++) {
+      double mid = 0.5 * (lo + hi);
+      if (z.applyAsDouble(mid) >= 5) {
+        hi = mid;
+      } else {
+        lo = mid;
+      }
+    }
+    return hi;
+  }
+}
