@@ -17,8 +17,9 @@ import triage.index.IngestReport;
 @Command(name = "demo", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
     description = {"Run the job on built-in demo data: generate the fictional photon-plus-jet samples, ingest them "
         + "into an event index, fit the ratio model, select the events where the observed density is at least "
-        + "three times the reference's, and rank the variables that set them apart.",
-        "(Calibration, artefact checks, region and follow-up steps join as they are built.)"},
+        + "three times the reference's, rank the variables that set them apart, check the suspect detector sector, "
+        + "freeze a region for the resonance and follow it up on the independent samples.",
+        "(Calibration and the report join as they are built.)"},
     footer = ExitCodes.FOOTER)
 public final class DemoCommand implements Callable<Integer> {
   /** Filled by picocli. */
@@ -50,24 +51,37 @@ public final class DemoCommand implements Callable<Integer> {
     DemoScenario.Settings s = small ? DemoScenario.Settings.small() : DemoScenario.Settings.standard();
     Path samples = out.resolve("samples");
     Path index = out.resolve("index");
-    o.note("[1/5] generating the demo samples in %s (seed %d)", samples, s.seed());
+    o.note("[1/7] generating the demo samples in %s (seed %d)", samples, s.seed());
     DemoScenario.Written w = DemoScenario.write(samples, s);
-    o.note("[2/5] ingesting into %s", index);
+    o.note("[2/7] ingesting into %s", index);
     IngestReport report = Ingest.run(w.sampleSpec(), index,
         Ingest.Options.defaults().with(ReadOptions.strict()).withReplace(true), line -> o.note("      " + line));
     java.io.PrintWriter human = json ? spec.commandLine().getErr() : spec.commandLine().getOut();
     java.io.PrintWriter err = spec.commandLine().getErr();
-    o.note("[3/5] summary");
+    o.note("[3/7] summary");
     int code = Main.run(new String[] {"info", "--index", index.toString()}, human, err);
-    o.note("[4/5] fitting the ratio model (iteration cap %d)", maxIterations);
+    o.note("[4/7] fitting the ratio model (iteration cap %d)", maxIterations);
     code = Math.max(code, Main.run(new String[] {"fit", "--index", index.toString(), "--max-iterations",
         String.valueOf(maxIterations)}, human, err));
     String where = "score:m1 > " + Math.log(3);
-    o.note("[5/5] the events with f > log 3, and what sets them apart");
+    o.note("[5/7] the events with f > log 3, and what sets them apart");
     code = Math.max(code, Main.run(new String[] {"select", "--index", index.toString(), "--where", where}, human,
         err));
     code = Math.max(code, Main.run(new String[] {"rank", "--index", index.toString(), "--where", where,
         "--permutations", "100"}, human, err));
+    String artefact = where + " AND sector = '" + DemoScenario.NOISY_SECTOR + "' AND met > 60";
+    o.note("[6/7] is it one detector sector? the same events in calorimeter sector %d with large missing momentum",
+        DemoScenario.NOISY_SECTOR);
+    code = Math.max(code, Main.run(new String[] {"select", "--index", index.toString(), "--where", artefact},
+        human, err));
+    String resonance = "m_gj BETWEEN 700 AND 800 AND NOT (sector = '" + DemoScenario.NOISY_SECTOR
+        + "' AND met > 60)";
+    Path region = out.resolve("resonance-region.json");
+    o.note("[7/7] freezing a region for the bump in m_gj and following it up on the independent samples");
+    code = Math.max(code, Main.run(new String[] {"region", "--index", index.toString(), "--where", resonance,
+        "--name", "photon-jet resonance", "--out", region.toString()}, human, err));
+    code = Math.max(code, Main.run(new String[] {"followup", "--region", region.toString(), "--spec",
+        w.spec().toString()}, human, err));
     double seconds = (System.nanoTime() - start) / 1e9;
     o.say("");
     o.say("demo done in %.1f s. Look further with, for example:", seconds);
