@@ -33,8 +33,8 @@ import triage.index.Manifest;
     description = {"Fit the ratio model f(x) ≈ log[n_observed(x)/n_reference(x)] on the index's observed and "
         + "reference samples, store it as a new model version, and score every event of every sample "
         + "(column score:VERSION).",
-        "Loss: L = Σ_ref w (e^f − 1) − Σ_obs f with the reference normalised to the observed count, parameters "
-            + "held in [−clip, clip]; the test statistic is t = −2 min L."},
+        "Loss: L = Σ_ref w (e^f − 1) − Σ_obs f with the reference weights as given (their sum is the expected "
+            + "count), parameters held in [−clip, clip]; the test statistic is t = −2 min L."},
     footer = ExitCodes.FOOTER)
 public final class FitCommand implements Callable<Integer> {
   /** Filled by picocli. */
@@ -57,6 +57,12 @@ public final class FitCommand implements Callable<Integer> {
   @Option(names = "--version-name", paramLabel = "NAME",
       description = "Name of the new model version (default: m1, m2, … the next free one).")
   String versionName;
+
+  /** Normalisation. */
+  @Option(names = "--normalise", defaultValue = "reference", paramLabel = "reference|observed",
+      description = "The expected count the reference predicts: its weights as given (reference, default), or "
+          + "scaled to the observed count (observed: compares shapes only).")
+  String normalise;
 
   /** JSON output. */
   @Option(names = "--json", description = "Print exactly one JSON object on stdout (fields: docs/json.md).")
@@ -147,8 +153,22 @@ public final class FitCommand implements Callable<Integer> {
       double[] refW = store.weights(reference);
       double[] obs = featureMajor(store.columns(observed, features));
       boolean negative = m.sample(reference).negativeWeights() > 0 || m.sample(reference).zeroWeights() > 0;
+      double predicted = m.sample(reference).sumOfWeights();
+      long nObs = m.sample(observed).events();
+      double expected = switch (normalise) {
+        case "reference" -> predicted;
+        case "observed" -> nObs;
+        default -> throw new CommandLine.ParameterException(spec.commandLine(),
+            "--normalise must be reference or observed, not '" + normalise + "'");
+      };
+      if (normalise.equals("reference") && Math.abs(nObs - predicted) > 5 * Math.sqrt(predicted)) {
+        o.note("warning: the reference predicts %.6g events and the observed sample has %d (%.1fσ apart); if the "
+            + "reference weights are not normalised to the observed data, use --normalise observed",
+            predicted, nObs, (nObs - predicted) / Math.sqrt(predicted));
+      }
       TrainingData data = new TrainingData(features, ref, refW, obs,
-          negative ? WeightPolicy.ALLOW_NEGATIVE : WeightPolicy.POSITIVE_ONLY, java.util.OptionalDouble.empty());
+          negative ? WeightPolicy.ALLOW_NEGATIVE : WeightPolicy.POSITIVE_ONLY,
+          java.util.OptionalDouble.of(expected));
       o.note("fitting %s on %d observed and %d reference events (%s, clip %s, %s) ...", settings.hiddenWidths(),
           m.sample(observed).events(), m.sample(reference).events(), settings.activation(), settings.clip(),
           settings.optimiser());
@@ -195,6 +215,8 @@ public final class FitCommand implements Callable<Integer> {
       result.put("lossEvaluations", fit.lossEvaluations());
       result.put("seconds", fit.elapsedSeconds());
       result.put("startLosses", fit.restartLosses());
+      result.put("expectedCount", expected);
+      result.put("normalise", normalise);
       result.put("settings", settings);
       o.result(result);
     }

@@ -153,6 +153,7 @@ class CliTest {
     assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
         "--observed", dir.resolve("obs.csv").toString(), "--features", "m", "--weight", "w").code());
     Run fit = run("fit", "--index", index.toString(), "--layers", "3", "--max-iterations", "200", "--threads", "2",
+        "--normalise", "observed",
         "--json");
     assertEquals(0, fit.code(), fit.err());
     JsonNode j = JSON.readTree(fit.out());
@@ -201,6 +202,40 @@ class CliTest {
     assertEquals(0, forced.code(), forced.err());
     assertEquals(2, JSON.readTree(forced.out()).get("overlappingIds").asLong());
     assertTrue(JSON.readTree(forced.out()).get("overlapAllowed").asBoolean());
+  }
+
+  @Test
+  void calibrateShardsResumeAndSummarise() throws IOException {
+    StringBuilder ref = new StringBuilder("event,m,w\n");
+    StringBuilder obs = new StringBuilder("event,m\n");
+    java.util.SplittableRandom r = new java.util.SplittableRandom(8);
+    for (int i = 0; i < 3000; i++) {
+      ref.append(i).append(',').append(r.nextGaussian()).append(',').append(0.05 + 0.1 * r.nextDouble())
+          .append('\n');
+    }
+    for (int i = 0; i < 300; i++) {
+      obs.append(i).append(',').append(r.nextGaussian()).append('\n');
+    }
+    Files.writeString(dir.resolve("ref.csv"), ref);
+    Files.writeString(dir.resolve("obs.csv"), obs);
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m", "--weight", "w").code());
+    assertEquals(0, run("fit", "--index", index.toString(), "--layers", "2", "--max-iterations", "100",
+        "--normalise", "observed", "--threads", "1").code());
+    Run a = run("calibrate", "--index", index.toString(), "--toys", "6", "--shard", "1/2", "--json");
+    assertEquals(0, a.code(), a.err());
+    assertEquals(3, JSON.readTree(a.out()).get("toys").size());
+    Run b = run("calibrate", "--index", index.toString(), "--toys", "6", "--shard", "2/2", "--json");
+    assertEquals(6, JSON.readTree(b.out()).get("toys").size());
+    Run again = run("calibrate", "--index", index.toString(), "--toys", "6", "--json");
+    assertEquals(0, again.code(), again.err());
+    assertTrue(again.err().contains("6 toys already done (all shards), 0 to fit"), again.err());
+    JsonNode s = JSON.readTree(again.out()).get("summary");
+    assertEquals(6, s.get("empirical").get("toys").asInt());
+    assertTrue(s.get("headline").asText().contains("p"), s.toString());
+    Run bad = run("calibrate", "--index", index.toString(), "--toys", "6", "--shard", "3/2");
+    assertEquals(ExitCodes.USAGE, bad.code());
   }
 
   @Test
