@@ -1,0 +1,112 @@
+package triage.shell;
+
+import java.io.PrintWriter;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.TreeSet;
+import java.util.concurrent.Callable;
+import org.jline.reader.EndOfFileException;
+import org.jline.reader.LineReader;
+import org.jline.reader.LineReaderBuilder;
+import org.jline.reader.UserInterruptException;
+import org.jline.reader.impl.DefaultParser;
+import org.jline.reader.impl.completer.StringsCompleter;
+import org.jline.terminal.Terminal;
+import org.jline.terminal.TerminalBuilder;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+import triage.index.EventStore;
+import triage.index.Manifest;
+
+/** {@code triage console}: an interactive session on one index. */
+@Command(name = "console", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
+    description = {"An interactive session on one index: type the commands without 'triage' and without --index "
+        + "(select, rank, fit, calibrate, region, info, help …). Line editing, history kept in DIR/console-history, "
+        + "tab completion of commands, options, columns, samples and model scores.",
+        "name NAME = CONDITION names a selection; $NAME uses it in a later --where; names lists them. "
+            + "Ctrl-C clears the line, Ctrl-D or quit leaves."},
+    footer = ExitCodes.FOOTER)
+public final class ConsoleCommand implements Callable<Integer> {
+  /** Filled by picocli. */
+  @CommandLine.Spec
+  CommandLine.Model.CommandSpec spec;
+
+  /** The index folder. */
+  @Option(names = "--index", required = true, paramLabel = "DIR", description = "The index folder.")
+  Path index;
+
+  @Override
+  public Integer call() throws Exception {
+    try (Terminal terminal = TerminalBuilder.builder().name("triage").system(true).build()) {
+      return loop(terminal, index);
+    }
+  }
+
+  /** The read-run loop on a terminal (tests use a dumb terminal on streams). */
+  static int loop(Terminal terminal, Path index) {
+    Manifest manifest;
+    try (EventStore store = EventStore.open(index)) {
+      manifest = store.manifest();
+    } catch (java.io.IOException e) {
+      throw new java.io.UncheckedIOException(e);
+    }
+    Session session = new Session(index);
+    DefaultParser parser = new DefaultParser();
+    LineReader reader = LineReaderBuilder.builder().terminal(terminal).appName("triage").parser(parser)
+        .completer(new StringsCompleter(completions(manifest)))
+        .variable(LineReader.HISTORY_FILE, index.resolve("console-history"))
+        .build();
+    PrintWriter out = terminal.writer();
+    out.println("triage console on " + index + " (" + manifest.totalEvents() + " events; 'help' lists commands, "
+        + "Ctrl-D leaves)");
+    out.flush();
+    while (true) {
+      String line;
+      try {
+        line = reader.readLine("triage> ");
+      } catch (UserInterruptException e) {
+        continue;
+      } catch (EndOfFileException e) {
+        break;
+      }
+      List<String> words = reader.getParsedLine() == null ? List.of() : reader.getParsedLine().words().stream()
+          .filter(w -> !w.isEmpty()).toList();
+      if (session.execute(line, words, out, out) < 0) {
+        break;
+      }
+    }
+    try {
+      reader.getHistory().save();
+    } catch (java.io.IOException e) {
+      out.println("triage: could not save the history: " + e.getMessage());
+    }
+    return ExitCodes.OK;
+  }
+
+  /** Words offered by tab completion. */
+  static List<String> completions(Manifest m) {
+    TreeSet<String> words = new TreeSet<>();
+    CommandLine root = Main.commandLine();
+    for (var e : root.getSubcommands().entrySet()) {
+      words.add(e.getKey());
+      for (CommandLine.Model.OptionSpec o : e.getValue().getCommandSpec().options()) {
+        words.addAll(List.of(o.names()));
+      }
+    }
+    words.addAll(List.of("name", "names", "quit", "AND", "OR", "NOT", "BETWEEN", "IN", "abs", "min", "max", "log",
+        "sqrt"));
+    for (Manifest.Column c : m.columns()) {
+      words.add(c.name());
+    }
+    for (Manifest.Sample s : m.samples()) {
+      words.add(s.name());
+    }
+    for (Manifest.Model model : m.models()) {
+      words.add("score:" + model.version());
+      words.add(model.version());
+    }
+    return new ArrayList<>(words);
+  }
+}

@@ -1,0 +1,80 @@
+package triage.shell;
+
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.NoSuchFileException;
+import java.nio.file.Path;
+import java.util.List;
+import java.util.concurrent.Callable;
+import org.jline.reader.impl.DefaultParser;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+import picocli.CommandLine.Parameters;
+import triage.core.sample.InputException;
+
+/** {@code triage run}: replays a console script. */
+@Command(name = "run", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
+    description = {"Run a console script on an index: one console line per script line (blank lines and lines "
+        + "starting with # are skipped), each echoed before it runs. Stops at the first failing line unless "
+        + "--keep-going."},
+    footer = ExitCodes.FOOTER)
+public final class RunCommand implements Callable<Integer> {
+  /** Filled by picocli. */
+  @CommandLine.Spec
+  CommandLine.Model.CommandSpec spec;
+
+  /** The index folder. */
+  @Option(names = "--index", required = true, paramLabel = "DIR", description = "The index folder.")
+  Path index;
+
+  /** Keep going. */
+  @Option(names = "--keep-going", description = "Run every line even after one fails (exit with the worst code).")
+  boolean keepGoing;
+
+  /** Script. */
+  @Parameters(index = "0", paramLabel = "SCRIPT", description = "The script file.")
+  Path script;
+
+  @Override
+  public Integer call() throws IOException {
+    List<String> lines;
+    try {
+      lines = Files.readAllLines(script);
+    } catch (NoSuchFileException e) {
+      throw new InputException(script, "script not found");
+    }
+    Session session = new Session(index);
+    DefaultParser parser = new DefaultParser();
+    var out = spec.commandLine().getOut();
+    var err = spec.commandLine().getErr();
+    int worst = 0;
+    for (int i = 0; i < lines.size(); i++) {
+      String line = lines.get(i).strip();
+      if (line.isEmpty() || line.startsWith("#")) {
+        continue;
+      }
+      out.println("triage> " + line);
+      out.flush();
+      List<String> words;
+      try {
+        words = parser.parse(line, line.length()).words().stream().filter(w -> !w.isEmpty()).toList();
+      } catch (org.jline.reader.EOFError e) {
+        throw new InputException(script, i + 1, 0, "unbalanced quotes: " + e.getMessage(), null);
+      }
+      int code = session.execute(line, words, out, err);
+      if (code < 0) {
+        break;
+      }
+      if (code != 0) {
+        err.println("triage: " + script + ":" + (i + 1) + ": this line failed (exit code " + code + ")");
+        err.flush();
+        worst = Math.max(worst, code);
+        if (!keepGoing) {
+          return code;
+        }
+      }
+    }
+    return worst;
+  }
+}
