@@ -239,6 +239,32 @@ class CliTest {
   }
 
   @Test
+  void histogramBinsReconcileAndPlotsAreWritten() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
+        .code());
+    Path png = dir.resolve("h.png");
+    Path svg = dir.resolve("h.svg");
+    Run r = run("hist", "--index", index.toString(), "--column", "m", "--bins", "4", "--range", "90:130", "--png",
+        png.toString(), "--svg", svg.toString(), "--json");
+    assertEquals(0, r.code(), r.err());
+    JsonNode bins = JSON.readTree(r.out()).get("bins");
+    // By hand: reference m = 100.5 (w 0.5), 120.25 (w 1.5), 90 (w 2) in bins of width 10 from 90.
+    assertEquals(2.0, bins.get(0).get("expected").asDouble(), 0);
+    assertEquals(0.5, bins.get(1).get("expected").asDouble(), 0);
+    assertEquals(1.5, bins.get(3).get("expected").asDouble(), 0);
+    // Observed m = 101 and 99.
+    assertEquals(1, bins.get(0).get("observed").asLong());
+    assertEquals(1, bins.get(1).get("observed").asLong());
+    byte[] head = java.util.Arrays.copyOf(Files.readAllBytes(png), 4);
+    assertEquals((byte) 0x89, head[0]);
+    assertEquals('P', head[1]);
+    assertTrue(Files.readString(svg).contains("<svg"), "SVG written");
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");
