@@ -265,6 +265,30 @@ class CliTest {
   }
 
   @Test
+  void eventsListTopByColumnAndShowOneInFull() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
+        .code());
+    Run top = run("events", "--index", index.toString(), "--sample", "reference", "--by", "m", "--top", "2",
+        "--json");
+    assertEquals(0, top.code(), top.err());
+    JsonNode ev = JSON.readTree(top.out()).get("events");
+    // By hand: the largest m are 120.25 (event 2) and 100.5 (event 1).
+    assertEquals(120.25, ev.get(0).get("numbers").get("m").asDouble(), 0);
+    assertEquals(100.5, ev.get(1).get("numbers").get("m").asDouble(), 0);
+    Run one = run("events", "--index", index.toString(), "--sample", "observed", "--id", "11", "--json");
+    assertEquals(0, one.code(), one.err());
+    assertEquals(3, JSON.readTree(one.out()).get("events").get(0).get("line").asLong());
+    Run none = run("events", "--index", index.toString(), "--id", "999");
+    assertEquals(ExitCodes.INPUT, none.code());
+    Run noModel = run("scan", "--index", index.toString());
+    assertEquals(ExitCodes.INPUT, noModel.code());
+    assertTrue(noModel.err().contains("no model scores yet"), noModel.err());
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");
