@@ -92,7 +92,7 @@ public final class CalibrateCommand implements Callable<Integer> {
       FitSettings settings = model.training().settings();
       double expected = model.training().expectedCount();
       double tObs = model.training().testStatistic();
-      String reference = sampleOf(m, Role.REFERENCE);
+      String reference = Roles.name(m, Role.REFERENCE);
       List<String> features = model.featureNames();
       double[] ref = FitCommand.featureMajor(store.columns(reference, features));
       double[] w = store.weights(reference);
@@ -189,12 +189,4 @@ public final class CalibrateCommand implements Callable<Integer> {
     return last;
   }
 
-  private static String sampleOf(Manifest m, Role role) {
-    for (Manifest.Sample s : m.samples()) {
-      if (s.role() == role) {
-        return s.name();
-      }
-    }
-    throw new InputException(null, "the index has no " + role + " sample");
-  }
 }

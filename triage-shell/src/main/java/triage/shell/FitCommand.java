@@ -146,8 +146,8 @@ public final class FitCommand implements Callable<Integer> {
     FitSettings settings = settings();
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
-      String observed = sampleOf(m, Role.OBSERVED);
-      String reference = sampleOf(m, Role.REFERENCE);
+      String observed = Roles.name(m, Role.OBSERVED);
+      String reference = Roles.name(m, Role.REFERENCE);
       List<String> features = m.spec().columns().features();
       double[] ref = featureMajor(store.columns(reference, features));
       double[] refW = store.weights(reference);
@@ -267,12 +267,4 @@ public final class FitCommand implements Callable<Integer> {
     }
   }
 
-  private static String sampleOf(Manifest m, Role role) {
-    for (Manifest.Sample s : m.samples()) {
-      if (s.role() == role) {
-        return s.name();
-      }
-    }
-    throw new InputException(null, "the index has no " + role + " sample to fit");
-  }
 }

@@ -77,8 +77,8 @@ public final class HistCommand implements Callable<Integer> {
       Manifest m = store.manifest();
       Role obsRole = pair.equals("follow-up") ? Role.FOLLOWUP_OBSERVED : Role.OBSERVED;
       Role refRole = pair.equals("follow-up") ? Role.FOLLOWUP_REFERENCE : Role.REFERENCE;
-      int obs = RegionCommand.ordinal(m, obsRole);
-      int ref = RegionCommand.ordinal(m, refRole);
+      int obs = Roles.ordinal(m, obsRole);
+      int ref = Roles.ordinal(m, refRole);
       Selection selection = where == null ? Selection.all() : store.where(where);
       double lo;
       double hi;

@@ -79,8 +79,8 @@ public final class RankCommand implements Callable<Integer> {
     }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
-      String observed = sampleOf(m, Role.OBSERVED);
-      String reference = sampleOf(m, Role.REFERENCE);
+      String observed = Roles.name(m, Role.OBSERVED);
+      String reference = Roles.name(m, Role.REFERENCE);
       List<String> features = m.spec().columns().features();
       Selection selection = store.where(where);
       BitSet obsMask = store.mask(selection, observed);
@@ -150,12 +150,4 @@ public final class RankCommand implements Callable<Integer> {
     return out;
   }
 
-  private static String sampleOf(Manifest m, Role role) {
-    for (Manifest.Sample s : m.samples()) {
-      if (s.role() == role) {
-        return s.name();
-      }
-    }
-    throw new triage.core.sample.InputException(null, "the index has no " + role + " sample");
-  }
 }

@@ -64,8 +64,8 @@ public final class RegionCommand implements Callable<Integer> {
       Manifest m = store.manifest();
       Selection selection = store.where(where);
       List<SampleSums> sums = store.sums(selection);
-      int obs = ordinal(m, Role.OBSERVED);
-      int ref = ordinal(m, Role.REFERENCE);
+      int obs = Roles.ordinal(m, Role.OBSERVED);
+      int ref = Roles.ordinal(m, Role.REFERENCE);
       SampleSums n = sums.get(obs);
       SampleSums b = sums.get(ref);
       Map<String, double[]> variations = new LinkedHashMap<>();
@@ -131,12 +131,4 @@ public final class RegionCommand implements Callable<Integer> {
     return ExitCodes.OK;
   }
 
-  static int ordinal(Manifest m, Role role) {
-    for (int i = 0; i < m.samples().size(); i++) {
-      if (m.samples().get(i).role() == role) {
-        return i;
-      }
-    }
-    throw new InputException(null, "the index has no " + role + " sample");
-  }
 }

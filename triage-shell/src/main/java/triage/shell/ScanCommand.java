@@ -52,7 +52,7 @@ public final class ScanCommand implements Callable<Integer> {
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       String column = model != null ? "score:" + model : EventsCommand.latestScore(m);
-      String observed = m.samples().get(RegionCommand.ordinal(m, Role.OBSERVED)).name();
+      String observed = m.samples().get(Roles.ordinal(m, Role.OBSERVED)).name();
       double[] f = store.columns(observed, List.of(column))[0].clone();
       java.util.Arrays.sort(f);
       o.say("%-12s %9s %12s %10s %10s %8s", "f > c", "observed", "expected", "MC error", "excess", "local Z");
@@ -62,8 +62,8 @@ public final class ScanCommand implements Callable<Integer> {
         double q = steps == 1 ? 0.5 : 0.5 + 0.49 * k / (steps - 1);
         double c = f[Math.min(f.length - 1, (int) (q * f.length))];
         List<SampleSums> sums = store.sums(store.where(column + " > " + c));
-        SampleSums n = sums.get(RegionCommand.ordinal(m, Role.OBSERVED));
-        SampleSums b = sums.get(RegionCommand.ordinal(m, Role.REFERENCE));
+        SampleSums n = sums.get(Roles.ordinal(m, Role.OBSERVED));
+        SampleSums b = sums.get(Roles.ordinal(m, Role.REFERENCE));
         double z = b.sumOfWeights() > 0 && b.statisticalError() > 0
             ? CountingSignificance.zBiFromBackground(n.count(), b.sumOfWeights(), b.statisticalError()).z()
             : Double.NaN;
