@@ -87,24 +87,24 @@ public final class Calibration {
    * @param observed t_obs
    * @param empirical the toy p-value ((k+1)/(N+1); a bound p &lt; 1/N when no toy reaches t_obs)
    * @param fit the maximum-likelihood χ² fit to the toys (null with fewer than 10 toys)
-   * @param pFitted asymptotic p from χ² with the fitted degrees of freedom
-   * @param zFitted its Z
+   * @param pFromFitted asymptotic p from χ² with the fitted degrees of freedom
+   * @param zFromFitted its Z
    * @param parameters the network's parameter count (Wilks' degrees of freedom)
    * @param pParameters asymptotic p from χ² with the parameter count
    * @param zParameters its Z
    * @param headline which figure to quote and why
    * @param warnings disagreements and extrapolations to be shown
    */
-  public record Summary(double observed, EmpiricalPValue.Result empirical, ChiSquaredFit.Result fit, double pFitted,
-      double zFitted, int parameters, double pParameters, double zParameters, String headline,
+  public record Summary(double observed, EmpiricalPValue.Result empirical, ChiSquaredFit.Result fit, double pFromFitted,
+      double zFromFitted, int parameters, double pParameters, double zParameters, String headline,
       List<String> warnings) {}
 
   /** Summarises toys against an observed t. */
   public static Summary summarise(double observed, double[] toys, int parameters) {
     EmpiricalPValue.Result emp = EmpiricalPValue.withDefaults().test(toys, observed);
     ChiSquaredFit.Result fit = null;
-    double pFit = Double.NaN;
-    double zFit = Double.NaN;
+    double pFromFit = Double.NaN;
+    double zFromFit = Double.NaN;
     List<String> warnings = new ArrayList<>();
     int positive = 0;
     double max = Double.NEGATIVE_INFINITY;
@@ -116,8 +116,8 @@ public final class Calibration {
     }
     if (positive >= 10 && positive == toys.length) {
       fit = ChiSquaredFit.withDefaults().fit(toys);
-      pFit = fit.pValue(observed);
-      zFit = fit.z(observed);
+      pFromFit = fit.pValue(observed);
+      zFromFit = fit.z(observed);
       if (fit.ksPValue() < 0.01) {
         warnings.add(String.format(java.util.Locale.ROOT, "the toys do not follow a χ² (KS p = %.2g against "
             + "χ²(%.1f)): asymptotic figures are unreliable", fit.ksPValue(), fit.dof()));
@@ -139,9 +139,9 @@ public final class Calibration {
       headline = String.format(java.util.Locale.ROOT, "the empirical toy p-value: p = %.3g ± %.2g, Z = %.2f "
           + "(%d of %d toys at or above t_obs)", emp.pValue(), emp.standardError(), emp.z(), emp.exceedances(),
           toys.length);
-      if (!Double.isNaN(zFit) && Math.abs(zFit - emp.z()) > 1) {
+      if (!Double.isNaN(zFromFit) && Math.abs(zFromFit - emp.z()) > 1) {
         warnings.add(String.format(java.util.Locale.ROOT, "the empirical Z (%.2f) and the fitted-χ² Z (%.2f) differ"
-            + " by more than 1", emp.z(), zFit));
+            + " by more than 1", emp.z(), zFromFit));
       }
     }
     if (fit != null && Math.abs(fit.dof() - parameters) > 3 * fit.standardError() + 0.1 * parameters) {
@@ -149,6 +149,6 @@ public final class Calibration {
           + " parameter count (%d): Wilks' asymptotics do not hold at this clip (see clip tuning)", fit.dof(),
           fit.standardError(), parameters));
     }
-    return new Summary(observed, emp, fit, pFit, zFit, parameters, pPar, zPar, headline, warnings);
+    return new Summary(observed, emp, fit, pFromFit, zFromFit, parameters, pPar, zPar, headline, warnings);
   }
 }
