@@ -33,6 +33,7 @@ public final class Main {
   public static CommandLine commandLine() {
     CommandLine cli = new CommandLine(new TriageCommand());
     cli.setCaseInsensitiveEnumValuesAllowed(true);
+    cli.setUsageHelpAutoWidth(true);
     cli.setExecutionExceptionHandler((e, commandLine, parseResult) -> {
       PrintWriter err = commandLine.getErr();
       Throwable t = e;

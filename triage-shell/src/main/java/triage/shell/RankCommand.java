@@ -119,6 +119,38 @@ public final class RankCommand implements Callable<Integer> {
           result.put("versusInside", rows);
         }
       }
+      Manifest.Model latest = null;
+      for (Manifest.Model mm : m.models()) {
+        if (mm.modelFile() != null) {
+          latest = mm;
+        }
+      }
+      if (latest != null) {
+        com.fasterxml.jackson.databind.node.ObjectNode doc = (com.fasterxml.jackson.databind.node.ObjectNode)
+            Output.JSON.readTree(java.nio.file.Files.readString(index.resolve(latest.modelFile())));
+        doc.remove("provenance");
+        triage.core.ratio.RatioModel model = triage.core.ratio.RatioModel.fromJson(Output.JSON.writeValueAsString(doc));
+        if (model.featureNames().equals(features)) {
+          int n = obs[0].length;
+          double[] g = model.gradientAll(FitCommand.featureMajor(obs), n, Runtime.getRuntime().availableProcessors());
+          Map<String, Double> attribution = new LinkedHashMap<>();
+          o.say("");
+          o.say("model %s attribution: mean |∂f/∂x|·σ_ref over the selected observed events (what the model leans on)",
+              latest.version());
+          for (int k = 0; k < features.size(); k++) {
+            double sum = 0;
+            for (int i = 0; i < n; i++) {
+              sum += Math.abs(g[k * n + i]);
+            }
+            double value = sum / n * m.sample(reference).featureSds().get(features.get(k));
+            attribution.put(features.get(k), value);
+          }
+          attribution.entrySet().stream().sorted((a, b) -> Double.compare(b.getValue(), a.getValue()))
+              .forEach(e -> o.say("  %-14s %10.4g", e.getKey(), e.getValue()));
+          result.put("attributionModel", latest.version());
+          result.put("attribution", attribution);
+        }
+      }
       o.say("note: 'perm p' is the permutation p-value of the KS distance, (k+1)/(B+1), and 'p adj' the same "
           + "adjusted for the %d features (maxT); 'KS p asym' uses effective sample sizes and is a guide only. "
           + "All are local to this selection.", features.size());

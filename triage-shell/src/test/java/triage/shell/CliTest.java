@@ -167,6 +167,9 @@ class CliTest {
     assertEquals(0, sel.code(), sel.err());
     long kept = JSON.readTree(sel.out()).get("comparisons").get(0).get("observed").asLong();
     assertTrue(kept > 150 && kept <= 300, "observed events with positive log ratio: " + kept);
+    Run rank = run("rank", "--index", index.toString(), "--where", "score:m1 > 0", "--permutations", "20", "--json");
+    assertEquals(0, rank.code(), rank.err());
+    assertTrue(JSON.readTree(rank.out()).get("attribution").get("m").asDouble() > 0, rank.out());
     assertTrue(Files.exists(index.resolve("models/m1.json")));
   }
 

@@ -87,16 +87,16 @@ public final class Calibration {
    * @param observed t_obs
    * @param empirical the toy p-value ((k+1)/(N+1); a bound p &lt; 1/N when no toy reaches t_obs)
    * @param fit the maximum-likelihood χ² fit to the toys (null with fewer than 10 toys)
-   * @param pFromFitted asymptotic p from χ² with the fitted degrees of freedom
-   * @param zFromFitted its Z
+   * @param pFitted asymptotic p from χ² with the fitted degrees of freedom
+   * @param zFitted its Z
    * @param parameters the network's parameter count (Wilks' degrees of freedom)
    * @param pParameters asymptotic p from χ² with the parameter count
    * @param zParameters its Z
    * @param headline which figure to quote and why
    * @param warnings disagreements and extrapolations to be shown
    */
-  public record Summary(double observed, EmpiricalPValue.Result empirical, ChiSquaredFit.Result fit, double pFromFitted,
-      double zFromFitted, int parameters, double pParameters, double zParameters, String headline,
+  public record Summary(double observed, EmpiricalPValue.Result empirical, ChiSquaredFit.Result fit, double pFitted,
+      double zFitted, int parameters, double pParameters, double zParameters, String headline,
       List<String> warnings) {}
 
   /** Summarises toys against an observed t. */
