@@ -292,6 +292,26 @@ class CliTest {
   }
 
   @Test
+  void breakdownByRunAndCategoryReconciles() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
+        .code());
+    Run r = run("breakdown", "--index", index.toString(), "--where", "m > 0", "--by", "run", "--json");
+    assertEquals(0, r.code(), r.err());
+    JsonNode j = JSON.readTree(r.out());
+    // By hand: run 5 has reference w 0.5 + 1.5 and observed event 10; run 6 has w 2 and event 11; r = 2/4, so
+    // both groups sit exactly at r·b and χ² = 0.
+    assertEquals(2, j.get("observed").asLong());
+    assertEquals(4.0, j.get("expected").asDouble(), 0);
+    assertEquals(0.0, j.get("homogeneityChi2").asDouble(), 1e-12);
+    assertEquals(2, j.get("values").size());
+    Run bad = run("breakdown", "--index", index.toString(), "--where", "m > 0", "--by", "m");
+    assertEquals(ExitCodes.INPUT, bad.code());
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");
