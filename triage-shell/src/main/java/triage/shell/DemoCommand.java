@@ -69,11 +69,11 @@ public final class DemoCommand implements Callable<Integer> {
         err));
     code = Math.max(code, Main.run(new String[] {"rank", "--index", index.toString(), "--where", where,
         "--permutations", "100"}, human, err));
-    String artefact = where + " AND sector = '" + DemoScenario.NOISY_SECTOR + "' AND met > 60";
-    o.note("[6/7] is it one detector sector? the same events in calorimeter sector %d with large missing momentum",
-        DemoScenario.NOISY_SECTOR);
-    code = Math.max(code, Main.run(new String[] {"select", "--index", index.toString(), "--where", artefact},
-        human, err));
+    o.note("[6/7] is it a few runs or one detector sector? (a real effect is spread over both)");
+    code = Math.max(code, Main.run(new String[] {"breakdown", "--index", index.toString(), "--where", where, "--by",
+        "run", "--top", "5"}, human, err));
+    code = Math.max(code, Main.run(new String[] {"breakdown", "--index", index.toString(), "--where", where, "--by",
+        "sector", "--top", "5"}, human, err));
     String resonance = "m_gj BETWEEN 700 AND 800 AND NOT (sector = '" + DemoScenario.NOISY_SECTOR
         + "' AND met > 60)";
     Path region = out.resolve("resonance-region.json");
