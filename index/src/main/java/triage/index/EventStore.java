@@ -57,6 +57,9 @@ public interface EventStore extends Closeable {
    */
   java.util.BitSet mask(Selection selection, String sample) throws IOException;
 
+  /** The values of a category column for every event of a sample, in row order. */
+  String[] categories(String sample, String column) throws IOException;
+
   /** The nominal weights of a sample's events, in row order. */
   double[] weights(String sample) throws IOException;
 

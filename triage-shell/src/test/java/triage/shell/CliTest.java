@@ -312,6 +312,24 @@ class CliTest {
   }
 
   @Test
+  void exportWritesTheSelectedEventsBackExactly() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
+        .code());
+    Path csv = dir.resolve("out.csv");
+    Run r = run("export", "--index", index.toString(), "--sample", "reference", "--where", "run = 5", "--out",
+        csv.toString(), "--json");
+    assertEquals(0, r.code(), r.err());
+    assertEquals(2, JSON.readTree(r.out()).get("events").asLong());
+    java.util.List<String> lines = Files.readAllLines(csv);
+    assertEquals("m,pt,event,run,weight", lines.get(0));
+    assertEquals("100.5,20.0,1,5,0.5", lines.get(1));
+    assertEquals("120.25,30.0,2,5,1.5", lines.get(2));
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");

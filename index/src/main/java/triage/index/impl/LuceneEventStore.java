@@ -768,6 +768,32 @@ public final class LuceneEventStore implements EventStore {
   }
 
   @Override
+  public String[] categories(String sample, String column) throws IOException {
+    Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
+    Manifest.Column c = manifest.column(column);
+    if (c == null || c.kind() != ColumnKind.CATEGORY) {
+      throw new IndexException(dir, "has no category column '" + column + "'");
+    }
+    List<String> values = facts.categories().get(column);
+    int offset = layout.place(column).offset();
+    long first = facts.firstRow();
+    String[] out = new String[(int) facts.events()];
+    perLeaf(Selection.all().inSamples(Set.of(sample)), new LeafTask<Object>() {
+      @Override
+      public Object start(LeafReaderContext leaf) {
+        return Boolean.TRUE;
+      }
+
+      @Override
+      public EventVisitor visitor(Object unused) {
+        return (b, base) -> out[(int) (Layout.getLong(b, base + Layout.ROW) - first)] =
+            values.get(Layout.getInt(b, base + offset));
+      }
+    });
+    return out;
+  }
+
+  @Override
   public double[] weights(String sample) throws IOException {
     Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     long first = facts.firstRow();
