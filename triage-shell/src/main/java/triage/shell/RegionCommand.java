@@ -75,6 +75,12 @@ public final class RegionCommand implements Callable<Integer> {
       double z = b.sumOfWeights() > 0 && b.statisticalError() > 0
           ? CountingSignificance.zBiFromBackground(n.count(), b.sumOfWeights(), b.statisticalError()).z()
           : Double.NaN;
+      double syst2 = 0;
+      for (double[] v : variations.values()) {
+        double d = Math.max(Math.abs(v[0] - b.sumOfWeights()), Math.abs(v[1] - b.sumOfWeights()));
+        syst2 += d * d;
+      }
+      Map<String, Long> seeds = new LinkedHashMap<>();
       Region.Model model = null;
       for (Manifest.Model mm : m.models()) {
         if (where.contains("score:" + mm.version()) && !"column".equals(mm.source())) {
@@ -86,6 +92,7 @@ public final class RegionCommand implements Callable<Integer> {
           String text = Output.JSON.writeValueAsString(doc);
           model = new Region.Model(mm.version(), Fingerprints.sha256(text.getBytes(
               java.nio.charset.StandardCharsets.UTF_8)), text);
+          seeds.put("fitSeed", doc.path("training").path("settings").path("seed").asLong());
         }
       }
       List<Region.Cut> cuts = new ArrayList<>();
@@ -108,13 +115,14 @@ public final class RegionCommand implements Callable<Integer> {
       }
       Region region = new Region(Region.FORMAT, name, where, cuts, residual, m.spec().columns(),
           m.spec().variations(), model,
-          new Region.Discovery(n.count(), b.sumOfWeights(), b.statisticalError(), variations, z, true),
+          new Region.Discovery(n.count(), b.sumOfWeights(), b.statisticalError(), Math.sqrt(syst2), variations, z,
+              true),
           new Region.Provenance("triage " + ToolVersion.get(), Instant.now().truncatedTo(ChronoUnit.SECONDS)
-              .toString(), m.indexId(), inputs), IdSet.of(idValues), SelectCommand.CAUTIONS);
+              .toString(), m.indexId(), inputs, seeds), IdSet.of(idValues), SelectCommand.CAUTIONS);
       region.write(out);
-      o.say("region '%s' frozen in %s: discovery observed %d, expected %.4g ± %.2g, local Z_Bi = %.2f "
-          + "(optimised on these data: biased upwards)", name, out, n.count(), b.sumOfWeights(),
-          b.statisticalError(), z);
+      o.say("region '%s' frozen in %s: discovery observed %d, expected %.4g ± %.2g (stat.) ± %.2g (syst.), local "
+          + "Z_Bi = %.2f (optimised on these data: biased upwards)", name, out, n.count(), b.sumOfWeights(),
+          b.statisticalError(), Math.sqrt(syst2), z);
       o.say("%d discovery observed ids recorded for the overlap guard%s", idValues.length,
           model == null ? "" : "; model " + model.version() + " frozen into the file");
       o.say("next: triage followup --region %s --spec <independent samples>", out);

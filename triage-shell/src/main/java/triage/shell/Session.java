@@ -18,7 +18,7 @@ import java.util.regex.Pattern;
  */
 final class Session {
   /** Commands that read the session's index. */
-  static final Set<String> INDEX_COMMANDS = Set.of("info", "select", "rank", "fit", "calibrate", "region", "hist", "events", "scan", "breakdown", "export");
+  static final Set<String> INDEX_COMMANDS = Set.of("info", "select", "rank", "fit", "calibrate", "region", "hist", "events", "scan", "breakdown", "export", "derive");
 
   /** The index. */
   private final Path index;
@@ -101,7 +101,15 @@ final class Session {
         args.add(1, "--index");
         args.add(2, index.toString());
       }
-      return Main.run(args.toArray(String[]::new), out, err);
+      DeriveCommand.lastCondition = null;
+      int code = Main.run(args.toArray(String[]::new), out, err);
+      int at = args.indexOf("--name");
+      if (code == 0 && first.equals("derive") && at >= 0 && at + 1 < args.size()
+          && DeriveCommand.lastCondition != null) {
+        names.put(args.get(at + 1), DeriveCommand.lastCondition);
+        out.println("named " + args.get(at + 1) + " = " + DeriveCommand.lastCondition);
+      }
+      return code;
     } catch (triage.core.sample.InputException e) {
       err.println("triage: " + e.getMessage());
       return ExitCodes.INPUT;

@@ -330,6 +330,42 @@ class CliTest {
   }
 
   @Test
+  void deriveFindsAPlantedBoxAndTheConsoleKeepsItByName() throws IOException {
+    StringBuilder ref = new StringBuilder("event,a,b,w\n");
+    StringBuilder obs = new StringBuilder("event,a,b\n");
+    java.util.SplittableRandom r = new java.util.SplittableRandom(5);
+    for (int i = 0; i < 20000; i++) {
+      ref.append(i).append(',').append(r.nextDouble()).append(',').append(r.nextDouble()).append(",0.1\n");
+    }
+    for (int i = 0; i < 2150; i++) {
+      double a = i < 2000 ? r.nextDouble() : 0.3 + 0.1 * r.nextDouble();
+      obs.append(i).append(',').append(a).append(',').append(r.nextDouble()).append('\n');
+    }
+    Files.writeString(dir.resolve("ref.csv"), ref);
+    Files.writeString(dir.resolve("obs.csv"), obs);
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "a,b", "--weight", "w").code());
+    Run d = run("derive", "--index", index.toString(), "--json");
+    assertEquals(0, d.code(), d.err());
+    JsonNode j = JSON.readTree(d.out());
+    assertEquals(1, j.get("cuts").size(), j.toString());
+    java.util.regex.Matcher cut = java.util.regex.Pattern.compile("^a BETWEEN ([0-9.]+) AND ([0-9.]+)$")
+        .matcher(j.get("condition").asText());
+    assertTrue(cut.matches(), j.toString());
+    // The planted window is [0.3, 0.4]; PRIM's bounds move by about one peel (α = 5% of the box).
+    assertEquals(0.3, Double.parseDouble(cut.group(1)), 0.03, j.toString());
+    assertEquals(0.4, Double.parseDouble(cut.group(2)), 0.03, j.toString());
+    assertTrue(j.get("localZBi").asDouble() > 5, j.toString());
+    assertTrue(j.get("optimisedOnTheseData").asBoolean());
+    Path script = dir.resolve("s.triage");
+    Files.writeString(script, "derive --name bump\nselect --where \"$bump AND b < 0.5\"\n");
+    Run s = run("run", "--index", index.toString(), script.toString());
+    assertEquals(0, s.code(), s.err());
+    assertTrue(s.out().contains("named bump = a BETWEEN "), s.out());
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");

@@ -64,13 +64,14 @@ public record Region(String format, String name, String where, List<Cut> cuts, S
    * @param observed n_d
    * @param expected b_d
    * @param expectedStatError √Σw²
+   * @param expectedSystError per variation the larger shift |b_up − b| or |b_down − b|, added in quadrature
    * @param variations per variation {up, down}
    * @param localZBi the local Z_Bi (MC statistical error only)
    * @param optimisedOnDiscoveryData always true: the region was chosen on these data, so this significance is
    *     biased upwards
    */
-  public record Discovery(long observed, double expected, double expectedStatError, Map<String, double[]> variations,
-      double localZBi, boolean optimisedOnDiscoveryData) {}
+  public record Discovery(long observed, double expected, double expectedStatError, double expectedSystError,
+      Map<String, double[]> variations, double localZBi, boolean optimisedOnDiscoveryData) {}
 
   /**
    * Where the region comes from.
@@ -79,8 +80,10 @@ public record Region(String format, String name, String where, List<Cut> cuts, S
    * @param created when (ISO-8601 UTC)
    * @param indexId the discovery index's id
    * @param inputs the discovery inputs
+   * @param seeds the seeds behind the region (e.g. the frozen model's fit seed)
    */
-  public record Provenance(String tool, String created, String indexId, List<Input> inputs) {}
+  public record Provenance(String tool, String created, String indexId, List<Input> inputs,
+      Map<String, Long> seeds) {}
 
   /** One discovery input file. */
   public record Input(String sample, String role, String file, String sha256) {}
