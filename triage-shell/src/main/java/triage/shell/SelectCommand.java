@@ -140,9 +140,14 @@ public final class SelectCommand implements Callable<Integer> {
       double up = b.upSums()[k];
       double down = b.downSums()[k];
       double nominal = b.sumOfWeights();
-      o.say("  %-16s expected up %.4g (%+.1f%%), down %.4g (%+.1f%%)", variations.get(k), up,
-          100 * (up / nominal - 1), down, 100 * (down / nominal - 1));
-      vs.put(variations.get(k), Map.of("expectedUp", up, "expectedDown", down));
+      double zUp = up > 0 && b.statisticalError() > 0 ? CountingSignificance.zBiFromBackground(n.count(), up,
+          b.statisticalError() * up / nominal).z() : Double.NaN;
+      double zDown = down > 0 && b.statisticalError() > 0 ? CountingSignificance.zBiFromBackground(n.count(), down,
+          b.statisticalError() * down / nominal).z() : Double.NaN;
+      o.say("  %-16s expected up %.4g (%+.1f%%): Z_Bi %.2f; down %.4g (%+.1f%%): Z_Bi %.2f", variations.get(k), up,
+          100 * (up / nominal - 1), zUp, down, 100 * (down / nominal - 1), zDown);
+      vs.put(variations.get(k), Map.of("expectedUp", up, "expectedDown", down, "localZBiUp", zUp, "localZBiDown",
+          zDown));
     }
     j.put("variations", vs);
     out.add(j);

@@ -366,6 +366,28 @@ class CliTest {
   }
 
   @Test
+  void mapCellsReconcileWithTheSelection() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
+        .code());
+    Run r = run("map", "--index", index.toString(), "--x", "m", "--y", "pt", "--bins", "3", "--png",
+        dir.resolve("map.png").toString(), "--json");
+    assertEquals(0, r.code(), r.err());
+    long n = 0;
+    double b = 0;
+    for (JsonNode c : JSON.readTree(r.out()).get("cells")) {
+      n += c.get("observed").asLong();
+      b += c.get("expected").asDouble();
+    }
+    // Every event lands in a cell: 2 observed, Σw = 4.
+    assertEquals(2, n);
+    assertEquals(4.0, b, 1e-12);
+    assertTrue(Files.size(dir.resolve("map.png")) > 0);
+  }
+
+  @Test
   void specAndFlagsAreExclusive() {
     Run r = run("ingest", "--index", "i", "--spec", "s.json", "--reference", "r.csv", "--observed", "o.csv",
         "--features", "m");
