@@ -1,6 +1,5 @@
 package triage.shell;
 
-import com.fasterxml.jackson.databind.node.ObjectNode;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
@@ -86,9 +85,7 @@ public final class CalibrateCommand implements Callable<Integer> {
         throw new InputException(index, "has no fitted model " + (version == null ? "(run triage fit first)"
             : "version '" + version + "'"));
       }
-      ObjectNode doc = (ObjectNode) Output.JSON.readTree(Files.readString(index.resolve(mm.modelFile())));
-      doc.remove("provenance");
-      RatioModel model = RatioModel.fromJson(Output.JSON.writeValueAsString(doc));
+      RatioModel model = ModelFiles.load(index, mm);
       FitSettings settings = model.training().settings();
       double expected = model.training().expectedCount();
       double tObs = model.training().testStatistic();

@@ -126,10 +126,7 @@ public final class RankCommand implements Callable<Integer> {
         }
       }
       if (latest != null) {
-        com.fasterxml.jackson.databind.node.ObjectNode doc = (com.fasterxml.jackson.databind.node.ObjectNode)
-            Output.JSON.readTree(java.nio.file.Files.readString(index.resolve(latest.modelFile())));
-        doc.remove("provenance");
-        triage.core.ratio.RatioModel model = triage.core.ratio.RatioModel.fromJson(Output.JSON.writeValueAsString(doc));
+        triage.core.ratio.RatioModel model = ModelFiles.load(index, latest);
         if (model.featureNames().equals(features)) {
           int n = obs[0].length;
           double[] g = model.gradientAll(FitCommand.featureMajor(obs), n, Runtime.getRuntime().availableProcessors());

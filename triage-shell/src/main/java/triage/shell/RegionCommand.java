@@ -1,7 +1,5 @@
 package triage.shell;
 
-import com.fasterxml.jackson.databind.node.ObjectNode;
-import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Instant;
 import java.time.temporal.ChronoUnit;
@@ -87,12 +85,10 @@ public final class RegionCommand implements Callable<Integer> {
           if (model != null) {
             throw new InputException(null, "a region can freeze one model; the condition uses several");
           }
-          ObjectNode doc = (ObjectNode) Output.JSON.readTree(Files.readString(index.resolve(mm.modelFile())));
-          doc.remove("provenance");
-          String text = Output.JSON.writeValueAsString(doc);
+          String text = ModelFiles.json(index, mm);
           model = new Region.Model(mm.version(), Fingerprints.sha256(text.getBytes(
               java.nio.charset.StandardCharsets.UTF_8)), text);
-          seeds.put("fitSeed", doc.path("training").path("settings").path("seed").asLong());
+          seeds.put("fitSeed", triage.core.ratio.RatioModel.fromJson(text).training().settings().seed());
         }
       }
       List<Region.Cut> cuts = new ArrayList<>();

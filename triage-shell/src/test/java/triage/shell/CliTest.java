@@ -39,6 +39,16 @@ class CliTest {
     return dir;
   }
 
+  /** Writes the small samples and ingests them (features m, pt; weight w; run) into DIR/index. */
+  private Path ingestSamples() throws IOException {
+    writeSamples();
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
+        .code());
+    return index;
+  }
+
   @Test
   void bareCommandPrintsUsage() {
     Run r = run();
@@ -116,11 +126,7 @@ class CliTest {
 
   @Test
   void selectReportsObservedExpectedAndLocalSignificance() throws IOException {
-    writeSamples();
-    Path index = dir.resolve("index");
-    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
-        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
-        .code());
+    Path index = ingestSamples();
     Run r = run("select", "--index", index.toString(), "--where", "m > 95 AND run = 5", "--json");
     assertEquals(0, r.code(), r.err());
     JsonNode j = JSON.readTree(r.out());
@@ -175,11 +181,7 @@ class CliTest {
 
   @Test
   void regionIsFrozenAndFollowedUpWithTheOverlapGuard() throws IOException {
-    writeSamples();
-    Path index = dir.resolve("index");
-    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
-        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
-        .code());
+    Path index = ingestSamples();
     Path region = dir.resolve("region.json");
     Run freeze = run("region", "--index", index.toString(), "--where", "m > 95 AND run = 5", "--out",
         region.toString(), "--json");
@@ -243,11 +245,7 @@ class CliTest {
 
   @Test
   void histogramBinsReconcileAndPlotsAreWritten() throws IOException {
-    writeSamples();
-    Path index = dir.resolve("index");
-    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
-        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
-        .code());
+    Path index = ingestSamples();
     Path png = dir.resolve("h.png");
     Path svg = dir.resolve("h.svg");
     Run r = run("hist", "--index", index.toString(), "--column", "m", "--bins", "4", "--range", "90:130", "--png",
@@ -269,11 +267,7 @@ class CliTest {
 
   @Test
   void eventsListTopByColumnAndShowOneInFull() throws IOException {
-    writeSamples();
-    Path index = dir.resolve("index");
-    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
-        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
-        .code());
+    Path index = ingestSamples();
     Run top = run("events", "--index", index.toString(), "--sample", "reference", "--by", "m", "--top", "2",
         "--json");
     assertEquals(0, top.code(), top.err());
@@ -293,11 +287,7 @@ class CliTest {
 
   @Test
   void breakdownByRunAndCategoryReconciles() throws IOException {
-    writeSamples();
-    Path index = dir.resolve("index");
-    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
-        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
-        .code());
+    Path index = ingestSamples();
     Run r = run("breakdown", "--index", index.toString(), "--where", "m > 0", "--by", "run", "--json");
     assertEquals(0, r.code(), r.err());
     JsonNode j = JSON.readTree(r.out());
@@ -313,11 +303,7 @@ class CliTest {
 
   @Test
   void exportWritesTheSelectedEventsBackExactly() throws IOException {
-    writeSamples();
-    Path index = dir.resolve("index");
-    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
-        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
-        .code());
+    Path index = ingestSamples();
     Path csv = dir.resolve("out.csv");
     Run r = run("export", "--index", index.toString(), "--sample", "reference", "--where", "run = 5", "--out",
         csv.toString(), "--json");
@@ -367,11 +353,7 @@ class CliTest {
 
   @Test
   void mapCellsReconcileWithTheSelection() throws IOException {
-    writeSamples();
-    Path index = dir.resolve("index");
-    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
-        "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt", "--weight", "w", "--run", "run")
-        .code());
+    Path index = ingestSamples();
     Run r = run("map", "--index", index.toString(), "--x", "m", "--y", "pt", "--bins", "3", "--png",
         dir.resolve("map.png").toString(), "--json");
     assertEquals(0, r.code(), r.err());

@@ -725,6 +725,20 @@ public final class LuceneEventStore implements EventStore {
     for (int k = 0; k < readers.length; k++) {
       readers[k] = valueReader(columns.get(k));
     }
+    scanSample(sample, (b, base) -> {
+          int i = (int) (Layout.getLong(b, base + Layout.ROW) - first);
+          for (int k = 0; k < readers.length; k++) {
+            out[k][i] = readers[k].value(b, base);
+          }
+        });
+    return out;
+  }
+
+  /**
+   * Visits every event of a sample (segments in parallel; each event once, so visitors may write to distinct array
+   * slots without locks).
+   */
+  private void scanSample(String sample, EventVisitor visitor) throws IOException {
     perLeaf(Selection.all().inSamples(Set.of(sample)), new LeafTask<Object>() {
       @Override
       public Object start(LeafReaderContext leaf) {
@@ -733,15 +747,9 @@ public final class LuceneEventStore implements EventStore {
 
       @Override
       public EventVisitor visitor(Object unused) {
-        return (b, base) -> {
-          int i = (int) (Layout.getLong(b, base + Layout.ROW) - first);
-          for (int k = 0; k < readers.length; k++) {
-            out[k][i] = readers[k].value(b, base);
-          }
-        };
+        return visitor;
       }
     });
-    return out;
   }
 
   @Override
@@ -778,18 +786,8 @@ public final class LuceneEventStore implements EventStore {
     int offset = layout.place(column).offset();
     long first = facts.firstRow();
     String[] out = new String[(int) facts.events()];
-    perLeaf(Selection.all().inSamples(Set.of(sample)), new LeafTask<Object>() {
-      @Override
-      public Object start(LeafReaderContext leaf) {
-        return Boolean.TRUE;
-      }
-
-      @Override
-      public EventVisitor visitor(Object unused) {
-        return (b, base) -> out[(int) (Layout.getLong(b, base + Layout.ROW) - first)] =
-            values.get(Layout.getInt(b, base + offset));
-      }
-    });
+    scanSample(sample, (b, base) -> out[(int) (Layout.getLong(b, base + Layout.ROW) - first)] =
+            values.get(Layout.getInt(b, base + offset)));
     return out;
   }
 
@@ -798,18 +796,8 @@ public final class LuceneEventStore implements EventStore {
     Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     long first = facts.firstRow();
     double[] out = new double[(int) facts.events()];
-    perLeaf(Selection.all().inSamples(Set.of(sample)), new LeafTask<Object>() {
-      @Override
-      public Object start(LeafReaderContext leaf) {
-        return Boolean.TRUE;
-      }
-
-      @Override
-      public EventVisitor visitor(Object unused) {
-        return (b, base) -> out[(int) (Layout.getLong(b, base + Layout.ROW) - first)] =
-            Layout.getDouble(b, base + Layout.WEIGHT);
-      }
-    });
+    scanSample(sample, (b, base) -> out[(int) (Layout.getLong(b, base + Layout.ROW) - first)] =
+            Layout.getDouble(b, base + Layout.WEIGHT));
     return out;
   }
 
