@@ -123,8 +123,9 @@ public final class BreakdownCommand implements Callable<Integer> {
         double z = r.expected() > 0 && r.expectedVariance() > 0 ? CountingSignificance.zBiFromBackground(
             r.observed(), r.expected(), Math.sqrt(r.expectedVariance())).z() : Double.NaN;
         if (i < top) {
-          o.say("  %-14s %9d %11.4g %+10.4g %8.2f", r.value(), r.observed(), r.expected(),
-              r.observed() - r.expected(), z);
+          o.say("  %-14s %9d %11.4g %+10.4g %8s", r.value(), r.observed(), r.expected(),
+              r.observed() - r.expected(), Double.isNaN(z) ? "no ref." : String.format(java.util.Locale.ROOT,
+              "%.2f", z));
         }
         Map<String, Object> j = new LinkedHashMap<>();
         j.put("value", r.value());
@@ -138,8 +139,9 @@ public final class BreakdownCommand implements Callable<Integer> {
       if (sorted.size() > top) {
         o.say("  … %d more values (--top, or --json for all)", sorted.size() - top);
       }
-      o.say("the top 3 values hold %.0f%% of the excess; homogeneity of observed/expected across values: "
-          + "χ² = %.1f for %d dof, p = %.3g%s", excess != 0 ? 100 * top3 / excess : Double.NaN, chi2,
+      o.say("the top %d value%s hold%s %.0f%% of the excess; homogeneity of observed/expected across values: "
+          + "χ² = %.1f for %d dof, p = %.3g%s", Math.min(3, sorted.size()), sorted.size() == 1 ? "" : "s",
+          sorted.size() == 1 ? "s" : "", excess != 0 ? 100 * top3 / excess : Double.NaN, chi2,
           Math.max(0, k - 1), p, p < 1e-3 ? " (concentrated: look for a detector or data-taking cause)" : "");
       Map<String, Object> result = new LinkedHashMap<>();
       result.put("command", "breakdown");

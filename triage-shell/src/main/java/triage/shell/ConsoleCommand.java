@@ -26,7 +26,8 @@ import triage.index.Manifest;
         + "(select, rank, fit, calibrate, region, info, help …). Line editing, history kept in DIR/console-history, "
         + "tab completion of commands, options, columns, samples and model scores.",
         "name NAME = CONDITION names a selection; $NAME uses it in a later --where; names lists them. "
-            + "Ctrl-C clears the line, Ctrl-D or quit leaves."},
+            + "Ctrl-C clears the line while typing and stops a running command (what it finished is kept: toys, "
+            + "stored results); Ctrl-D or quit leaves."},
     footer = ExitCodes.FOOTER)
 public final class ConsoleCommand implements Callable<Integer> {
   /** Filled by picocli. */
@@ -40,6 +41,10 @@ public final class ConsoleCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     try (Terminal terminal = TerminalBuilder.builder().name("triage").system(true).build()) {
+      if (terminal.getWidth() <= 0) {
+        // A terminal that reports no size (some serial lines and wrappers): assume the classic one.
+        terminal.setSize(new org.jline.terminal.Size(80, 24));
+      }
       return loop(terminal, index);
     }
   }
@@ -53,12 +58,24 @@ public final class ConsoleCommand implements Callable<Integer> {
       throw new java.io.UncheckedIOException(e);
     }
     Session session = new Session(index);
+    java.util.function.IntSupplier previousWidth = Output.terminalWidth;
+    Output.terminalWidth = () -> terminal.getType().startsWith("dumb") ? 0 : terminal.getWidth();
     DefaultParser parser = new DefaultParser();
     LineReader reader = LineReaderBuilder.builder().terminal(terminal).appName("triage").parser(parser)
         .completer(new StringsCompleter(completions(manifest)))
         .variable(LineReader.HISTORY_FILE, index.resolve("console-history"))
         .build();
     PrintWriter out = terminal.writer();
+    // Ctrl-C while a command runs asks it to stop after its current step; while typing, the line reader
+    // installs its own handler (clear the line) and restores this one afterwards.
+    terminal.handle(Terminal.Signal.INT, signal -> {
+      if (!triage.core.Cancellation.requested()) {
+        triage.core.Cancellation.request();
+        out.println();
+        out.println("stopping after the current step ...");
+        out.flush();
+      }
+    });
     out.println("triage console on " + index + " (" + manifest.totalEvents() + " events; 'help' lists commands, "
         + "Ctrl-D leaves)");
     out.flush();
@@ -73,10 +90,12 @@ public final class ConsoleCommand implements Callable<Integer> {
       }
       List<String> words = reader.getParsedLine() == null ? List.of() : reader.getParsedLine().words().stream()
           .filter(w -> !w.isEmpty()).toList();
+      triage.core.Cancellation.clear();
       if (session.execute(line, words, out, out) < 0) {
         break;
       }
     }
+    Output.terminalWidth = previousWidth;
     try {
       reader.getHistory().save();
     } catch (java.io.IOException e) {

@@ -14,8 +14,11 @@ public final class ExitCodes {
   /** Invalid input: a file, spec or index that is missing, malformed or inconsistent. */
   public static final int INPUT = 3;
 
+  /** The command was cancelled (Ctrl-C in the console); what it had finished is kept. */
+  public static final int CANCELLED = 130;
+
   /** The footer listing the codes, shown in every command's help. */
-  public static final String FOOTER = "%nExit codes: 0 success, 1 internal error, 2 usage error, 3 invalid input.";
+  public static final String FOOTER = "%nExit codes: 0 success, 1 internal error, 2 usage error, 3 invalid input, 130 cancelled.";
 
   private ExitCodes() {
     // no instance

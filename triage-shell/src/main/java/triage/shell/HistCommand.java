@@ -131,7 +131,8 @@ public final class HistCommand implements Callable<Integer> {
           m.samples().get(obs).name(), m.samples().get(ref).name());
       o.say("%-23s %8s %10s %7s %6s  %s", "bin", "observed", "expected", "ratio", "pull",
           "█ observed, │ expected");
-      int width = 40;
+      // The bars take what the terminal leaves after the 62 columns of numbers (40 when unknown).
+      int width = o.width() > 0 ? Math.max(10, Math.min(60, o.width() - 63)) : 40;
       for (int i = 0; i < bins; i++) {
         double ratio = b[i] > 0 ? n[i] / b[i] : Double.NaN;
         o.say("[%9.4g, %9.4g) %8d %10.4g %7.3f %6.2f  %s", edges[i], edges[i + 1], n[i], b[i], ratio, pulls[i],

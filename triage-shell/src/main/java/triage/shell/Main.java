@@ -40,6 +40,11 @@ public final class Main {
       if (t instanceof java.io.UncheckedIOException u && u.getCause() != null) {
         t = u.getCause();
       }
+      if (t instanceof triage.core.Cancellation.CancelledException) {
+        err.println("triage: cancelled");
+        err.flush();
+        return ExitCodes.CANCELLED;
+      }
       if (t instanceof InputException input) {
         err.println("triage: " + input.getMessage());
         err.flush();

@@ -16,8 +16,17 @@ public final class Output {
   static final ObjectMapper JSON = new ObjectMapper().enable(SerializationFeature.INDENT_OUTPUT)
       .disable(SerializationFeature.FAIL_ON_EMPTY_BEANS);
 
+  /**
+   * The width text must fit: the console's terminal width while a console runs, else {@code COLUMNS} when set,
+   * else 0 (no limit: pipes and files get whole lines).
+   */
+  static volatile java.util.function.IntSupplier terminalWidth = Output::columnsVariable;
+
   /** Whether JSON was asked for. */
   private final boolean json;
+
+  /** Whether a table line was cut to the width. */
+  private boolean cut;
 
   /** The command's stdout. */
   private final PrintWriter out;
@@ -37,11 +46,70 @@ public final class Output {
     return json;
   }
 
-  /** Prints a line of human text (stdout, or stderr with {@code --json}). */
+  /** The width to fit (0: no limit). */
+  public int width() {
+    return json ? 0 : terminalWidth.getAsInt();
+  }
+
+  /**
+   * Prints a line of human text (stdout, or stderr with {@code --json}), fitted to {@link #width()}: prose is
+   * wrapped at spaces; a table row (two spaces inside) is cut with … and a note at the end says so.
+   */
   public void say(String format, Object... args) {
     PrintWriter w = json ? err : out;
-    w.println(args.length == 0 ? format : String.format(Locale.ROOT, format, args));
+    String line = args.length == 0 ? format : String.format(Locale.ROOT, format, args);
+    int width = width();
+    for (String part : line.split("\n", -1)) {
+      if (width > 0 && part.codePointCount(0, part.length()) > width) {
+        if (TABLE_ROW.matcher(part.strip()).find()) {
+          cut = true;
+          w.println(part.substring(0, part.offsetByCodePoints(0, width - 1)) + "…");
+        } else {
+          wrap(w, part, width);
+        }
+      } else {
+        w.println(part);
+      }
+    }
     w.flush();
+  }
+
+  /** Two spaces between words: columns of a table. */
+  private static final java.util.regex.Pattern TABLE_ROW = java.util.regex.Pattern.compile("\\S {2,}\\S");
+
+  /** Wraps prose at spaces, continuation lines indented two more than the first. */
+  static void wrap(PrintWriter w, String line, int width) {
+    int lead = 0;
+    while (lead < line.length() && line.charAt(lead) == ' ') {
+      lead++;
+    }
+    String indent = " ".repeat(Math.min(lead + 2, width / 2));
+    StringBuilder current = new StringBuilder(line.substring(0, lead));
+    boolean first = true;
+    for (String word : line.substring(lead).split(" ")) {
+      int have = current.codePointCount(0, current.length());
+      boolean empty = have == (first ? lead : indent.length());
+      if (!empty && have + 1 + word.codePointCount(0, word.length()) > width) {
+        w.println(current);
+        current = new StringBuilder(indent);
+        first = false;
+        empty = true;
+      }
+      if (!empty) {
+        current.append(' ');
+      }
+      current.append(word);
+    }
+    w.println(current);
+  }
+
+  private static int columnsVariable() {
+    try {
+      String columns = System.getenv("COLUMNS");
+      return columns == null ? 0 : Math.max(0, Integer.parseInt(columns.strip()));
+    } catch (NumberFormatException e) {
+      return 0;
+    }
   }
 
   /** Prints a progress or warning line on stderr. */
@@ -52,6 +120,11 @@ public final class Output {
 
   /** Prints the one JSON object of a {@code --json} run (does nothing otherwise). */
   public void result(Object value) {
+    if (cut) {
+      say("(table rows were cut at the terminal's width of %d columns: widen it, or use --json for everything)",
+          width());
+      cut = false;
+    }
     if (!json) {
       return;
     }

@@ -462,6 +462,7 @@ public final class LuceneEventStore implements EventStore {
     Object[] results = new Object[leaves.size()];
     IOException[] failure = new IOException[1];
     IntStream.range(0, leaves.size()).parallel().forEach(i -> {
+      triage.core.Cancellation.check();
       try {
         LeafReaderContext leaf = leaves.get(i);
         R partial = task.start(leaf);

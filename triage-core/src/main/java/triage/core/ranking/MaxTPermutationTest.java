@@ -216,6 +216,7 @@ public final class MaxTPermutationTest {
     final long[] maxCount = new long[nf];
     final UniformRandomProvider rng = RandomSource.XO_RO_SHI_RO_128_PP.create(seed);
     for (int b = 0; b < permutations; b++) {
+      triage.core.Cancellation.check();
       PermutationSampler.shuffle(rng, index);
       double max = Double.NEGATIVE_INFINITY;
       for (int f = 0; f < nf; f++) {

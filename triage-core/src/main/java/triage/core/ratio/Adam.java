@@ -38,6 +38,7 @@ final class Adam {
     double f = 0;
     double pg = 0;
     for (int t = 0; t < epochs; t++) {
+      triage.core.Cancellation.check();
       f = fn.valueAndGradient(x, g);
       pg = Box.projectedGradientNorm(x, g, bound);
       history[t % history.length] = f;

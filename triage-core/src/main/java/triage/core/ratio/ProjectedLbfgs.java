@@ -71,6 +71,7 @@ final class ProjectedLbfgs {
           log.finish());
     }
     while (iteration < rule.maxIterations()) {
+      triage.core.Cancellation.check();
       double gInf = 0;
       for (int i = 0; i < n; i++) {
         gInf = Math.max(gInf, Math.abs(g[i]));

@@ -118,6 +118,7 @@ public final class Prim {
       rIdx[i] = i;
     }
     while (true) {
+      triage.core.Cancellation.check();
       int n = oIdx.length;
       int remove = (int) Math.max(1, Math.floor(s.alpha() * n));
       if (n - remove < minKeep) {
