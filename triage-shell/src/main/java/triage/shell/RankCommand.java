@@ -57,6 +57,37 @@ public final class RankCommand implements Callable<Integer> {
       description = "Seed of the permutations (default: ${DEFAULT-VALUE}).")
   long seed;
 
+  /** Pairs shown. */
+  @Option(names = "--pairs", defaultValue = "5", paramLabel = "N",
+      description = "Feature pairs shown under each table, largest 2D Jensen-Shannon divergence first, with how "
+          + "much the pair shows beyond its two features alone (default: ${DEFAULT-VALUE}; 0 for none).")
+  int pairs;
+
+  /** Bins per feature for the pairs. */
+  @Option(names = "--pair-bins", defaultValue = "6", paramLabel = "N",
+      description = "Reference-quantile bins per feature for the pairs (default: ${DEFAULT-VALUE}).")
+  int pairBins;
+
+  /** Sort order. */
+  @Option(names = "--sort", defaultValue = "ks", paramLabel = "ks|auc|w1|js|p",
+      description = "Sort the tables by KS distance, |AUC-0.5|, W1, JS (largest first) or by adjusted p "
+          + "(smallest first) (default: ${DEFAULT-VALUE}).")
+  SortKey sort;
+
+  /** Sort keys. */
+  enum SortKey {
+    /** KS distance. */
+    ks,
+    /** |AUC − 0.5|. */
+    auc,
+    /** Wasserstein-1. */
+    w1,
+    /** Jensen–Shannon. */
+    js,
+    /** Adjusted permutation p-value. */
+    p
+  }
+
   /** JSON output. */
   @Option(names = "--json", description = "Print exactly one JSON object on stdout (fields: docs/json.md).")
   boolean json;
@@ -76,6 +107,10 @@ public final class RankCommand implements Callable<Integer> {
     Output o = new Output(spec, json);
     if (permutations < 0) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--permutations must be 0 or more");
+    }
+    if (pairs < 0 || pairBins < 2) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--pairs must be 0 or more and --pair-bins 2 or "
+          + "more");
     }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
@@ -101,9 +136,10 @@ public final class RankCommand implements Callable<Integer> {
       result.put("seed", seed);
       o.say("selection  %s: %d observed events", where, obsMask.cardinality());
       if (versus != Versus.inside) {
-        List<FeatureRanking.Row> rows = FeatureRanking.rank(features, obs, refAll, wAll, 0, seed);
+        List<FeatureRanking.Row> rows = sorted(FeatureRanking.rank(features, obs, refAll, wAll, 0, seed));
         print(o, "versus all reference events (" + wAll.length + "): where the selection lives", rows);
         result.put("versusAll", rows);
+        result.put("pairsVersusAll", pairs(o, features, obs, refAll, wAll));
       }
       if (versus != Versus.all) {
         BitSet refMask = store.mask(selection, reference);
@@ -113,10 +149,12 @@ public final class RankCommand implements Callable<Integer> {
         } else {
           double[][] refIn = subset(refAll, refMask);
           double[] wIn = subset(new double[][] {wAll}, refMask)[0];
-          List<FeatureRanking.Row> rows = FeatureRanking.rank(features, obs, refIn, wIn, permutations, seed);
+          List<FeatureRanking.Row> rows = sorted(FeatureRanking.rank(features, obs, refIn, wIn, permutations,
+              seed));
           print(o, "versus reference inside the selection (" + refMask.cardinality()
               + "): what the selection does not explain", rows);
           result.put("versusInside", rows);
+          result.put("pairsVersusInside", pairs(o, features, obs, refIn, wIn));
         }
       }
       Manifest.Model latest = null;
@@ -154,6 +192,34 @@ public final class RankCommand implements Callable<Integer> {
       o.result(result);
     }
     return ExitCodes.OK;
+  }
+
+  private List<FeatureRanking.Row> sorted(List<FeatureRanking.Row> rows) {
+    java.util.Comparator<FeatureRanking.Row> by = switch (sort) {
+      case ks -> java.util.Comparator.comparingDouble(FeatureRanking.Row::ks).reversed();
+      case auc -> java.util.Comparator.comparingDouble(FeatureRanking.Row::aucSeparation).reversed();
+      case w1 -> java.util.Comparator.comparingDouble(FeatureRanking.Row::wasserstein).reversed();
+      case js -> java.util.Comparator.comparingDouble(FeatureRanking.Row::jensenShannon).reversed();
+      case p -> java.util.Comparator.comparingDouble((FeatureRanking.Row r) -> Double.isNaN(r.adjustedP()) ? 2
+          : r.adjustedP());
+    };
+    return rows.stream().sorted(by).toList();
+  }
+
+  /** The top pairs, printed; all of them for JSON. */
+  private List<triage.core.ranking.FeaturePairs.Pair> pairs(Output o, List<String> features, double[][] obs,
+      double[][] ref, double[] w) {
+    if (pairs == 0 || features.size() < 2) {
+      return List.of();
+    }
+    List<triage.core.ranking.FeaturePairs.Pair> all = triage.core.ranking.FeaturePairs.rank(features, obs, ref, w,
+        pairBins);
+    o.say("  top pairs in 2D (%d×%d reference-quantile bins)   JS (nats)  beyond the better feature alone", pairBins,
+        pairBins);
+    for (triage.core.ranking.FeaturePairs.Pair p : all.subList(0, Math.min(pairs, all.size()))) {
+      o.say("    %-28s %10.5f %+10.5f", p.first() + " × " + p.second(), p.jensenShannon(), p.beyondMarginals());
+    }
+    return all;
   }
 
   private static void print(Output o, String title, List<FeatureRanking.Row> rows) {

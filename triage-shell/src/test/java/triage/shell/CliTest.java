@@ -180,6 +180,43 @@ class CliTest {
   }
 
   @Test
+  void rankShowsThePairThatOnlyTwoDimensionsReveal() throws IOException {
+    // Reference y ≈ x, observed y ≈ −x: each feature alone looks alike, the pair does not.
+    java.util.SplittableRandom r = new java.util.SplittableRandom(3);
+    StringBuilder ref = new StringBuilder("event,x,y,z,w\n");
+    StringBuilder obs = new StringBuilder("event,x,y,z\n");
+    for (int i = 0; i < 3000; i++) {
+      double x = r.nextGaussian();
+      ref.append(i).append(',').append(x).append(',').append(x + 0.2 * r.nextGaussian()).append(',')
+          .append(r.nextGaussian()).append(",1\n");
+    }
+    for (int i = 0; i < 400; i++) {
+      double x = r.nextGaussian();
+      obs.append(i).append(',').append(x).append(',').append(-x + 0.2 * r.nextGaussian()).append(',')
+          .append(r.nextGaussian()).append('\n');
+    }
+    Files.writeString(dir.resolve("ref.csv"), ref);
+    Files.writeString(dir.resolve("obs.csv"), obs);
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "x,y,z", "--weight", "w").code());
+    Run rank = run("rank", "--index", index.toString(), "--where", "x > -100", "--versus", "all", "--sort", "js",
+        "--json");
+    assertEquals(0, rank.code(), rank.err());
+    JsonNode j = JSON.readTree(rank.out());
+    JsonNode top = j.get("pairsVersusAll").get(0);
+    assertEquals("x", top.get("first").asText(), rank.out());
+    assertEquals("y", top.get("second").asText(), rank.out());
+    assertTrue(top.get("beyondMarginals").asDouble() > 0.3, rank.out());
+    JsonNode rows = j.get("versusAll");
+    for (int i = 1; i < rows.size(); i++) {
+      assertTrue(rows.get(i - 1).get("jensenShannon").asDouble() >= rows.get(i).get("jensenShannon").asDouble());
+    }
+    Run human = run("rank", "--index", index.toString(), "--where", "x > -100", "--versus", "all", "--pairs", "1");
+    assertTrue(human.out().contains("x × y"), human.out());
+  }
+
+  @Test
   void regionIsFrozenAndFollowedUpWithTheOverlapGuard() throws IOException {
     Path index = ingestSamples();
     Path region = dir.resolve("region.json");
