@@ -96,7 +96,10 @@ public final class DemoScenario {
         new SampleSource("observed", Role.OBSERVED, "observed.csv.gz", null),
         new SampleSource("followup-reference", Role.FOLLOWUP_REFERENCE, "followup-reference.csv.gz", "weight"),
         new SampleSource("followup-observed", Role.FOLLOWUP_OBSERVED, "followup-observed.csv.gz", null));
-    return new SampleSpec(SampleSpec.FORMAT, columns, variations, samples);
+    // The calorimeter's energy scale, known to 1.5%: it moves the photon and jet momenta and their mass together.
+    List<triage.core.sample.ScaleShift> scales = List.of(new triage.core.sample.ScaleShift("calo_energy_scale",
+        List.of("m_gj", "pt_g", "pt_j"), 0.015));
+    return new SampleSpec(SampleSpec.FORMAT, columns, variations, scales, samples);
   }
 
   /** Writes the four samples, {@code spec.json} and {@code truth.csv} into a folder. */

@@ -4,6 +4,7 @@ import java.io.Closeable;
 import java.io.IOException;
 import java.nio.file.Path;
 import java.util.List;
+import java.util.Map;
 import java.util.Optional;
 import triage.index.impl.LuceneEventStore;
 
@@ -34,6 +35,9 @@ public interface EventStore extends Closeable {
    * @throws triage.core.select.WhereException with the position of a parse, name or type error
    */
   Selection where(String condition);
+
+  /** What each selectable column holds (features, bookkeeping, variation weights, score columns). */
+  Map<String, triage.core.select.Where.Kind> kinds();
 
   /** Per-sample sums over the selected events, in manifest order (samples not selected have zero sums). */
   List<SampleSums> sums(Selection selection) throws IOException;

@@ -18,7 +18,7 @@ import java.util.regex.Pattern;
  */
 final class Session {
   /** Commands that read the session's index. */
-  static final Set<String> INDEX_COMMANDS = Set.of("info", "select", "rank", "fit", "calibrate", "region", "hist", "events", "scan", "breakdown", "export", "derive", "map");
+  static final Set<String> INDEX_COMMANDS = Set.of("info", "select", "rank", "fit", "calibrate", "region", "hist", "events", "scan", "breakdown", "export", "derive", "map", "stress");
 
   /** The index. */
   private final Path index;

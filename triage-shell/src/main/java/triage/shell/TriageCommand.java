@@ -10,7 +10,7 @@ import triage.shell.bench.BenchCommand;
         ""},
     commandListHeading = "%nCommands:%n",
     footer = ExitCodes.FOOTER,
-    subcommands = {DemoCommand.class, GenerateCommand.class, IngestCommand.class, InfoCommand.class, SelectCommand.class, RankCommand.class, FitCommand.class, CalibrateCommand.class, RegionCommand.class, FollowupCommand.class, HistCommand.class, MapCommand.class, BreakdownCommand.class, ExportCommand.class, DeriveCommand.class, EventsCommand.class, ScanCommand.class, ConsoleCommand.class, RunCommand.class,
+    subcommands = {DemoCommand.class, GenerateCommand.class, IngestCommand.class, InfoCommand.class, SelectCommand.class, RankCommand.class, FitCommand.class, CalibrateCommand.class, RegionCommand.class, FollowupCommand.class, HistCommand.class, MapCommand.class, BreakdownCommand.class, ExportCommand.class, DeriveCommand.class, StressCommand.class, EventsCommand.class, ScanCommand.class, ConsoleCommand.class, RunCommand.class,
         BenchCommand.class, CommandLine.HelpCommand.class})
 public final class TriageCommand implements Runnable {
   /** Filled by picocli. */

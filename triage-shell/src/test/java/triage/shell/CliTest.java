@@ -180,6 +180,47 @@ class CliTest {
   }
 
   @Test
+  void stressScalesTheReferenceAndSaysWhichPullWouldExplainTheExcess() throws IOException {
+    // Reference x = 1..100 (weight 1), observed: 60 events at x = 60. x > 50 expects 50 with 60 observed.
+    // A 10% scale on x (from the spec) moves the cut to x > 45.45 (55 expected, +5) or x > 55.56 (45): a pull of
+    // (60 − 50)/5 = 2σ explains the excess (analytic; 46..100 and 56..100 hold 55 and 45 values).
+    StringBuilder ref = new StringBuilder("event,x,w\n");
+    for (int i = 1; i <= 100; i++) {
+      ref.append(i).append(',').append(i).append(",1\n");
+    }
+    StringBuilder obs = new StringBuilder("event,x\n");
+    for (int i = 1; i <= 60; i++) {
+      obs.append(i).append(",60\n");
+    }
+    Files.writeString(dir.resolve("ref.csv"), ref);
+    Files.writeString(dir.resolve("obs.csv"), obs);
+    Files.writeString(dir.resolve("spec.json"), """
+        {"format": "triage-samples/1", "columns": {"features": ["x"], "id": "event"},
+         "scales": [{"name": "x_scale", "features": ["x"], "relative": 0.1}],
+         "samples": [{"name": "reference", "role": "reference", "file": "ref.csv", "weight": "w"},
+                     {"name": "observed", "role": "observed", "file": "obs.csv"}]}
+        """);
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--spec", dir.resolve("spec.json").toString())
+        .code());
+    Run r = run("stress", "--index", index.toString(), "--where", "x > 50", "--scale", "half=x:0.05", "--json");
+    assertEquals(0, r.code(), r.err());
+    JsonNode result = JSON.readTree(r.out()).get("result");
+    assertEquals(50, result.get("expected").asDouble(), 1e-12);
+    JsonNode rows = result.get("rows");
+    assertEquals("x_scale", rows.get(0).get("name").asText());
+    assertEquals(55, rows.get(0).get("expectedUp").asDouble(), 1e-12);
+    assertEquals(45, rows.get(0).get("expectedDown").asDouble(), 1e-12);
+    assertEquals(2, rows.get(0).get("pullToExplain").asDouble(), 1e-12);
+    // 5%: x > 47.62 keeps 48..100 (53) → pull 10/3.
+    assertEquals(10.0 / 3, rows.get(1).get("pullToExplain").asDouble(), 1e-12);
+    assertTrue(result.get("verdict").asText().contains("x_scale alone would explain"), r.out());
+    Run bad = run("stress", "--index", index.toString(), "--where", "x > 50", "--scale", "oops=y:0.1");
+    assertEquals(2, bad.code());
+    assertTrue(bad.err().contains("'y' is not a feature (features: x)"), bad.err());
+  }
+
+  @Test
   void rankShowsThePairThatOnlyTwoDimensionsReveal() throws IOException {
     // Reference y ≈ x, observed y ≈ −x: each feature alone looks alike, the pair does not.
     java.util.SplittableRandom r = new java.util.SplittableRandom(3);

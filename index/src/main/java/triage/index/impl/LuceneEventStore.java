@@ -267,8 +267,8 @@ public final class LuceneEventStore implements EventStore {
     }
   }
 
-  /** What each selectable column holds, for conditions. */
-  private Map<String, Where.Kind> kinds() {
+  @Override
+  public Map<String, Where.Kind> kinds() {
     Map<String, Where.Kind> kinds = new LinkedHashMap<>();
     for (Manifest.Column c : manifest.columns()) {
       kinds.put(c.name(), c.kind() == ColumnKind.CATEGORY ? Where.Kind.CATEGORY : Where.Kind.NUMBER);

@@ -23,10 +23,17 @@ import java.util.Set;
  * @param format the spec format, {@value #FORMAT}
  * @param columns the columns every sample has
  * @param variations systematic-variation weight pairs, carried by reference samples
+ * @param scales systematics declared as relative scale shifts of features (evaluated by re-scoring)
  * @param samples the input files
  */
 @JsonInclude(JsonInclude.Include.NON_EMPTY)
-public record SampleSpec(String format, Columns columns, List<Variation> variations, List<SampleSource> samples) {
+public record SampleSpec(String format, Columns columns, List<Variation> variations, List<ScaleShift> scales,
+    List<SampleSource> samples) {
+
+  /** A spec without scale shifts. */
+  public SampleSpec(String format, Columns columns, List<Variation> variations, List<SampleSource> samples) {
+    this(format, columns, variations, List.of(), samples);
+  }
 
   /** The only spec format this version reads. */
   public static final String FORMAT = "triage-samples/1";
@@ -50,6 +57,7 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
       throw new IllegalArgumentException("spec has no 'columns'");
     }
     variations = variations == null ? List.of() : List.copyOf(variations);
+    scales = scales == null ? List.of() : List.copyOf(scales);
     if (samples == null || samples.isEmpty()) {
       throw new IllegalArgumentException("spec has no 'samples'");
     }
@@ -70,6 +78,17 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
         if (!used.add(c)) {
           throw new IllegalArgumentException("variation '" + v.name() + "' column '" + c
               + "' is already used by another column");
+        }
+      }
+    }
+    for (ScaleShift shift : scales) {
+      if (!variationNames.add(shift.name())) {
+        throw new IllegalArgumentException("systematic '" + shift.name() + "' is named twice");
+      }
+      for (String f : shift.features()) {
+        if (!columns.features().contains(f)) {
+          throw new IllegalArgumentException("scale shift '" + shift.name() + "' scales '" + f + "', which is not "
+              + "a feature (features: " + String.join(", ", columns.features()) + ")");
         }
       }
     }
@@ -108,7 +127,7 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
     for (SampleSource s : samples) {
       resolved.add(s.resolvedAgainst(folder));
     }
-    return new SampleSpec(format, columns, variations, resolved);
+    return new SampleSpec(format, columns, variations, scales, resolved);
   }
 
   /** The spec as indented JSON. */
