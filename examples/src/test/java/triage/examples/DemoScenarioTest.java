@@ -77,4 +77,16 @@ class DemoScenarioTest {
     assertTrue(resonance > 10 && burst > 10, "resonance " + resonance + ", burst " + burst);
     assertEquals(0, followBurst);
   }
+
+  @Test
+  void theResonanceIsSizedForFourToFiveSigma() {
+    // Check values computed once by an independent quadrature (a Riemann sum in 0.05 GeV steps over 200–2000 GeV)
+    // with Python 3.11, math only: src/test/resources/ideal_significance.py prints 4.7245 and 4.8917.
+    assertEquals(4.7245, DemoScenario.idealSignificance(DemoScenario.Settings.standard()), 2e-3);
+    assertEquals(4.8917, DemoScenario.idealSignificance(DemoScenario.Settings.small()), 2e-3);
+    for (var s : new DemoScenario.Settings[] {DemoScenario.Settings.standard(), DemoScenario.Settings.small()}) {
+      double z = DemoScenario.idealSignificance(s);
+      assertTrue(z >= 4 && z <= 5, "ideal Z " + z);
+    }
+  }
 }
