@@ -83,7 +83,7 @@ class CalibrateCommandTest {
 
   /**
    * Shards 1/2 and 2/2 run in two copies of the index and merged into a third give exactly (bit for bit in t) the
-   * toy set of an unsharded run in a fourth; merging again adds nothing; a file of another seed and a file whose t
+   * toy set of an unsharded run in a fourth, and so does an interrupted run resumed in a fifth; merging again adds nothing; a file of another seed and a file whose t
    * disagrees are refused, naming the file and the reason.
    */
   @Test
@@ -95,6 +95,8 @@ class CalibrateCommandTest {
     copy(a, b);
     copy(a, c);
     copy(a, d);
+    Path e = dir.resolve("e");
+    copy(a, e);
     assertEquals(0, run("calibrate", "--index", a.toString(), "--toys", "6", "--shard", "1/2", "--plot", "none")
         .code());
     assertEquals(0, run("calibrate", "--index", b.toString(), "--toys", "6", "--shard", "2/2", "--plot", "none")
@@ -114,6 +116,15 @@ class CalibrateCommandTest {
     assertEquals(toySet(w), toySet(m));
     assertEquals(w.get("summary").get("empirical").get("pValue").asDouble(),
         m.get("summary").get("empirical").get("pValue").asDouble(), 0.0);
+
+    // An interrupted run (3 toys done, then a line torn by a kill mid-write) resumes to the same toy set.
+    assertEquals(0, run("calibrate", "--index", e.toString(), "--toys", "3", "--plot", "none").code());
+    Path fe = e.resolve("toys/m1/seed-1-shard-1-of-1.jsonl");
+    Files.writeString(fe, "{\"toy\":3,\"seed\":12", java.nio.file.StandardOpenOption.APPEND);
+    CliTest.Run resumed = run("calibrate", "--index", e.toString(), "--toys", "6", "--json", "--plot", "none");
+    assertEquals(0, resumed.code(), resumed.err());
+    assertTrue(resumed.err().contains("3 toys already done (all shards), 3 to fit"), resumed.err());
+    assertEquals(toySet(w), toySet(JSON.readTree(resumed.out())));
 
     CliTest.Run again = run("calibrate", "--index", c.toString(), "--merge", fa.toString(), "--json", "--plot",
         "none");

@@ -7,8 +7,8 @@ import java.util.Arrays;
  *
  * <p>Formula: for sorted values {@code x_(1) <= ... <= x_(n)} and probability q, {@code h = (n - 1) q},
  * {@code Q(q) = x_(floor h + 1) + (h - floor h) (x_(floor h + 2) - x_(floor h + 1))}: linear interpolation between
- * order statistics, definition 7 of R.J. Hyndman and Y. Fan, "Sample quantiles in statistical packages", Am. Stat.
- * 50 (1996) 361, doi:10.1080/00031305.1996.10473566 (the default of most statistics packages).
+ * order statistics (the definition numbered 7 in the usual catalogue of sample quantiles, and the default of most
+ * statistics packages).
  *
  * <ul>
  *   <li>one value: every quantile is that value;</li>

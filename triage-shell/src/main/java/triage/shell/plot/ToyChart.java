@@ -105,8 +105,8 @@ public final class ToyChart {
     if (Double.isFinite(observed)) {
       ValueMarker m = new ValueMarker(observed, new Color(180, 20, 20), new BasicStroke(2f));
       m.setLabel(String.format(Locale.ROOT, "t_obs = %.4g", observed));
-      m.setLabelAnchor(RectangleAnchor.TOP_LEFT);
-      m.setLabelTextAnchor(TextAnchor.TOP_RIGHT);
+      m.setLabelAnchor(RectangleAnchor.TOP_RIGHT);
+      m.setLabelTextAnchor(TextAnchor.TOP_LEFT);
       m.setLabelPaint(new Color(180, 20, 20));
       plot.addDomainMarker(m);
     }
@@ -144,6 +144,10 @@ public final class ToyChart {
     }
     LogAxis x = new LogAxis("iteration cap");
     x.setSmallestValue(0.5);
+    // One tick per decade, labelled as plain numbers (10, 100, 1,000) rather than powers.
+    x.setTickUnit(new org.jfree.chart.axis.NumberTickUnit(1));
+    x.setNumberFormatOverride(new java.text.DecimalFormat("#,##0", java.text.DecimalFormatSymbols.getInstance(
+        Locale.ROOT)));
     NumberAxis y = new NumberAxis("toy t (median solid, 97.5% quantile dashed)");
     XYPlot plot = new XYPlot(data, x, y, r);
     JFreeChart chart = new JFreeChart(title, JFreeChart.DEFAULT_TITLE_FONT, plot, true);
