@@ -264,7 +264,7 @@ public final class CalibrateCommand implements Callable<Integer> {
       Calibration.run(r.features(), r.x(), r.w(), c.expected(), c.settings(), seed, longs(todo), e -> {
         ToyLog.append(file, header, List.of(e));
         progress.step(String.format(Locale.ROOT, "  toy %d: t = %.3f (%d events, %s, %.1f s)", e.toy(), e.t(),
-            e.events(), e.converged() ? "converged" : "not converged", e.seconds()));
+            e.events(), e.converged() ? "converged" : "not converged", e.seconds()), e.t());
       });
     }
     summarise(o, c, readAll(c.folder(), seed, c.nullFingerprint()), "calibrate", Map.of());
@@ -405,7 +405,7 @@ public final class CalibrateCommand implements Callable<Integer> {
             longs(todo(done.get(cl).keySet(), sh)), e -> {
               ToyLog.append(file, h, List.of(e));
               progress.step(String.format(Locale.ROOT, "  clip %s toy %d: t = %s at caps %s (%.1f s)", cl,
-                  e.toy(), fmt(e.t()), java.util.Arrays.toString(capGrid), e.seconds()));
+                  e.toy(), fmt(e.t()), java.util.Arrays.toString(capGrid), e.seconds()), e.t()[e.t().length - 1]);
             });
       }
     }
@@ -565,7 +565,7 @@ public final class CalibrateCommand implements Callable<Integer> {
           e -> {
             ToyLog.append(file, h, List.of(e));
             progress.step(String.format(Locale.ROOT, "  signal toy %d: t = %.3f (%d events, %d injected, %.1f s)",
-                e.toy(), e.t(), e.events(), e.injected(), e.seconds()));
+                e.toy(), e.t(), e.events(), e.injected(), e.seconds()), e.t());
           });
     }
     TreeMap<Long, ToyLog.SignalToy> all = readSignal(folder, fp);

@@ -78,12 +78,13 @@ final class ToyProgress implements AutoCloseable {
   /**
    * One toy finished.
    *
-   * @param line what the line fallback prints for it (the bar shows it as its message)
+   * @param line what the line fallback prints for it
+   * @param t the toy's t, shown beside the bar
    */
-  void step(String line) {
+  void step(String line, double t) {
     done++;
     if (bar != null) {
-      bar.setExtraMessage(line);
+      bar.setExtraMessage(String.format(Locale.ROOT, " last t = %.3g", t));
       bar.step();
       return;
     }

@@ -83,8 +83,8 @@ class CalibrateCommandTest {
 
   /**
    * Shards 1/2 and 2/2 run in two copies of the index and merged into a third give exactly (bit for bit in t) the
-   * toy set of an unsharded run in a fourth, and so does an interrupted run resumed in a fifth; merging again adds nothing; a file of another seed and a file whose t
-   * disagrees are refused, naming the file and the reason.
+   * toy set of an unsharded run in a fourth, and so does an interrupted run resumed in a fifth; merging again adds
+   * nothing; a file of another seed and a file whose t disagrees are refused, naming the file and the reason.
    */
   @Test
   void shardsMergedFromCopiesEqualTheUnshardedRun() throws IOException {

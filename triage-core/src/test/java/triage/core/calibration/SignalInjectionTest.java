@@ -109,7 +109,8 @@ class SignalInjectionTest {
   /**
    * Fitted signal toys sit above null toys: a 1-2-1 network on 1D (3,000 reference, N_exp = 100), 15 null and 15
    * signal toys with a bump of K = 40 at x = 2 (σ 0.1); the median signal t exceeds every null toy, so the median
-   * expected Z comes from the fitted χ² and is above 3 (a bump of 40 events a strong signal: the reference expects about 2 events within ±2σ of the peak, where 38 of the 40 fall).
+   * expected Z comes from the fitted χ² and is above 3 (a bump of 40 events is a strong signal: the reference
+   * expects about 2 events within ±2σ of the peak, where 38 of the 40 fall).
    */
   @Test
   void injectedSignalGivesALargeMedianZ() throws Exception {
