@@ -86,10 +86,11 @@ public final class FitCommand implements Callable<Integer> {
             + "cross-entropy, converted to the same log ratio and t.")
     String loss;
 
-    /** Clip. */
-    @Option(names = "--clip", defaultValue = "9", paramLabel = "C",
-        description = "Weight clipping: every parameter held in [-C, C] (default: ${DEFAULT-VALUE}).")
-    double clip;
+    /** Clip: a number, or "tuned"; null when not given. */
+    @Option(names = "--clip", paramLabel = "C|tuned",
+        description = "Weight clipping: every parameter held in [-C, C] (default: 9); tuned: the clip chosen by "
+            + "calibrate --tune-clip (DIR/" + CalibrateCommand.TUNED_CLIP + ").")
+    String clip;
   }
 
   /** Training options. */
@@ -143,7 +144,7 @@ public final class FitCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
-    FitSettings settings = settings();
+    FitSettings settings = settings(clip(o));
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       String observed = Roles.name(m, Role.OBSERVED);
@@ -223,7 +224,48 @@ public final class FitCommand implements Callable<Integer> {
     return ExitCodes.OK;
   }
 
-  private FitSettings settings() {
+  /** The clip: the number given, the tuned clip for "tuned", else 9 (with a note when a tuned clip exists). */
+  private double clip(Output o) throws java.io.IOException {
+    Path file = index.resolve(CalibrateCommand.TUNED_CLIP);
+    if (model.clip == null) {
+      triage.core.calibration.TunedClip tc = java.nio.file.Files.exists(file)
+          ? triage.core.calibration.TunedClip.read(file) : null;
+      if (tc != null && tc.clip() != 9) {
+        o.note("note: clip tuning chose clip %s (%s); this fit uses the default 9 unless given --clip tuned",
+            tc.clip(), file);
+      }
+      return 9;
+    }
+    if (!model.clip.equals("tuned")) {
+      try {
+        return Double.parseDouble(model.clip);
+      } catch (NumberFormatException e) {
+        throw new CommandLine.ParameterException(spec.commandLine(),
+            "--clip must be a number or 'tuned', not '" + model.clip + "'");
+      }
+    }
+    triage.core.calibration.TunedClip tc = triage.core.calibration.TunedClip.read(file);
+    if (tc == null) {
+      throw new InputException(file, "no tuned clip recorded: run triage calibrate --index " + index
+          + " --tune-clip --toys N first, or give --clip C");
+    }
+    String loss = switch (model.loss) {
+      case "cross-entropy" -> LossKind.BINARY_CROSS_ENTROPY.toString();
+      default -> LossKind.EXTENDED_LIKELIHOOD.toString();
+    };
+    if (!tc.hiddenWidths().equals(model.layers) || !tc.activation().equals(model.activation.toString())
+        || !tc.loss().equals(loss)) {
+      throw new InputException(file, String.format(java.util.Locale.ROOT, "the tuned clip %s was chosen for "
+          + "layers %s, %s, %s; this fit asks for layers %s, %s, %s, for which it means nothing: tune again "
+          + "with a model of this network, or give --clip C", tc.clip(), tc.hiddenWidths(), tc.activation(),
+          tc.loss(), model.layers, model.activation, loss));
+    }
+    o.note("clip %s from clip tuning (%s, model %s, %d toys per clip)", tc.clip(), file, tc.model(),
+        tc.toysPerClip());
+    return tc.clip();
+  }
+
+  private FitSettings settings(double clip) {
     OptimiserKind optimiser = switch (training.optimiser) {
       case "lbfgs" -> OptimiserKind.PROJECTED_LBFGS;
       case "adam" -> OptimiserKind.ADAM;
@@ -238,7 +280,7 @@ public final class FitCommand implements Callable<Integer> {
     };
     try {
       FitSettings s = FitSettings.defaults().withHiddenWidths(model.layers).withActivation(model.activation)
-          .withLoss(loss).withClip(model.clip).withSeed(training.seed).withOptimiser(optimiser)
+          .withLoss(loss).withClip(clip).withSeed(training.seed).withOptimiser(optimiser)
           .withRestarts(training.starts).withAdamEpochs(training.epochs)
           .withAdamLearningRate(training.learningRate)
           .withStoppingRule(StoppingRule.defaults().withMaxIterations(training.maxIterations)
