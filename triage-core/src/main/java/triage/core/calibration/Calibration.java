@@ -53,6 +53,7 @@ public final class Calibration {
     int d = names.size();
     List<ToyLog.Entry> out = new ArrayList<>();
     for (long k : toys) {
+      triage.core.Cancellation.check();
       long start = System.nanoTime();
       ToySampler.Toy toy = ToySampler.draw(weights, expected, runSeed, k);
       long seed = ToySampler.toySeed(runSeed, k);
@@ -88,6 +89,7 @@ public final class Calibration {
     long background = ToySampler.toySeed(runSeed ^ SIGNAL_STREAM, -1);
     List<ToyLog.SignalToy> out = new ArrayList<>();
     for (long k : toys) {
+      triage.core.Cancellation.check();
       long start = System.nanoTime();
       SignalDraw draw = drawSignal(names, reference, weights, expected, runSeed, k, signal);
       long seed = ToySampler.toySeed(background, k);

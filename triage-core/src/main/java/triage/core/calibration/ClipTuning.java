@@ -115,6 +115,7 @@ public final class ClipTuning {
     long stream = tuningSeed(runSeed);
     List<TuningToy> out = new ArrayList<>();
     for (long k : toys) {
+      triage.core.Cancellation.check();
       long start = System.nanoTime();
       ToySampler.Toy toy = ToySampler.draw(weights, expected, stream, k);
       long seed = ToySampler.toySeed(stream, k);
