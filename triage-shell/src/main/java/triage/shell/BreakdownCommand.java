@@ -13,6 +13,7 @@ import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 import triage.core.inference.CountingSignificance;
+import triage.core.inference.SelectionShare;
 import triage.core.provenance.ToolVersion;
 import triage.core.sample.InputException;
 import triage.core.sample.Role;
@@ -24,11 +25,14 @@ import triage.index.Selection;
 
 /** {@code triage breakdown}: is an excess concentrated in a few runs, one detector region, one trigger? */
 @Command(name = "breakdown", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
-    description = {"Break a selection down by a bookkeeping column (run, block, or a category such as the detector "
-        + "sector or trigger): per value the observed count, the expected reference yield, the excess and a local "
-        + "Z, largest excess first; how much of the excess the top values hold; and a χ² test that observed/"
-        + "expected is the same for every value (a real effect spread over the detector and the running "
-        + "period passes it; a noisy sector or a few bad runs fail it)."},
+    description = {"Break a selection down by bookkeeping columns (run, block, or a category such as the detector "
+        + "sector or trigger; default: all of them): per value the observed count, the expected reference yield, "
+        + "the excess and a local Z, largest excess first, with the value's share of its observed events that the "
+        + "selection takes and that share's pull. Two homogeneity tests per column: the selection's share of the "
+        + "observed events is the same in every value (Pearson χ² and G-test of the selected/not-selected table; "
+        + "needs no simulation), and observed/expected is the same in every value. A real effect spread over the "
+        + "detector and the running period passes both; a noisy sector or a few bad runs fail them. One verdict "
+        + "line per column; for runs, the share in run order as well (time stability)."},
     footer = ExitCodes.FOOTER)
 public final class BreakdownCommand implements Callable<Integer> {
   /** Filled by picocli. */
@@ -43,9 +47,10 @@ public final class BreakdownCommand implements Callable<Integer> {
   @Option(names = "--where", required = true, paramLabel = "CONDITION", description = "The selection.")
   String where;
 
-  /** Column. */
-  @Option(names = "--by", required = true, paramLabel = "COL", description = "A run, block or category column.")
-  String by;
+  /** Columns. */
+  @Option(names = "--by", split = ",", paramLabel = "COL,...",
+      description = "Run, block or category columns (default: every one of them in the index).")
+  List<String> by;
 
   /** Rows shown. */
   @Option(names = "--top", defaultValue = "15", paramLabel = "N", description = "Rows shown (default: ${DEFAULT-VALUE}).")
@@ -56,19 +61,60 @@ public final class BreakdownCommand implements Callable<Integer> {
   boolean json;
 
   /** One value's yields. */
-  record Row(String value, long observed, double expected, double expectedVariance) {}
+  record Row(String value, long observed, double expected, double expectedVariance, long observedAll) {}
 
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
+      List<String> columns = by;
+      if (columns == null || columns.isEmpty()) {
+        columns = m.columns().stream().filter(c -> c.kind() == ColumnKind.CATEGORY || c.kind() == ColumnKind.RUN
+            || c.kind() == ColumnKind.BLOCK).map(Manifest.Column::name).toList();
+        if (columns.isEmpty()) {
+          throw new InputException(index, "has no run, block or category column to break a selection down by");
+        }
+      }
+      Selection selection = store.where(where);
+      List<Map<String, Object>> results = new ArrayList<>();
+      List<String> verdicts = new ArrayList<>();
+      for (String c : columns) {
+        Map<String, Object> r = column(store, m, selection, c, o);
+        results.add(r);
+        verdicts.add(c + ": " + r.get("verdict"));
+        if (columns.size() > 1) {
+          o.say("");
+        }
+      }
+      if (columns.size() > 1) {
+        o.say("verdicts");
+        verdicts.forEach(v -> o.say("  " + v));
+      }
+      Map<String, Object> result = new LinkedHashMap<>();
+      if (columns.size() == 1) {
+        result.putAll(results.get(0));
+      } else {
+        result.put("command", "breakdown");
+        result.put("tool", "triage " + ToolVersion.get());
+        result.put("index", index.toString());
+        result.put("where", where);
+        result.put("columns", results);
+        result.put("verdicts", verdicts);
+      }
+      o.result(result);
+    }
+    return ExitCodes.OK;
+  }
+
+  private Map<String, Object> column(EventStore store, Manifest m, Selection selection, String by, Output o)
+      throws java.io.IOException {
+    {
       Manifest.Column column = m.column(by);
       if (column == null || !(column.kind() == ColumnKind.CATEGORY || column.kind() == ColumnKind.RUN
           || column.kind() == ColumnKind.BLOCK || column.kind() == ColumnKind.ID)) {
         throw new InputException(index, "breakdown needs a run, block or category column, not '" + by + "'");
       }
-      Selection selection = store.where(where);
       String observed = Roles.name(m, Role.OBSERVED);
       String reference = Roles.name(m, Role.REFERENCE);
       List<Row> rows = new ArrayList<>();
@@ -79,31 +125,43 @@ public final class BreakdownCommand implements Callable<Integer> {
         int obs = Roles.ordinal(m, Role.OBSERVED);
         int ref = Roles.ordinal(m, Role.REFERENCE);
         for (String v : values) {
-          List<SampleSums> s = store.sums(selection.and(new Selection.CategoryIn(by, java.util.Set.of(v))));
-          rows.add(new Row(v, s.get(obs).count(), s.get(ref).sumOfWeights(), s.get(ref).sumOfSquaredWeights()));
+          Selection.CategoryIn in = new Selection.CategoryIn(by, java.util.Set.of(v));
+          List<SampleSums> s = store.sums(selection.and(in));
+          long all = store.sums(Selection.all().and(in)).get(obs).count();
+          rows.add(new Row(v, s.get(obs).count(), s.get(ref).sumOfWeights(), s.get(ref).sumOfSquaredWeights(),
+              all));
         }
       } else {
         TreeMap<Long, double[]> acc = new TreeMap<>();
         BitSet om = store.mask(selection, observed);
         double[] ov = store.columns(observed, List.of(by))[0];
-        for (int i = om.nextSetBit(0); i >= 0; i = om.nextSetBit(i + 1)) {
-          acc.computeIfAbsent((long) ov[i], k -> new double[3])[0]++;
+        for (int i = 0; i < ov.length; i++) {
+          double[] a = acc.computeIfAbsent((long) ov[i], k -> new double[4]);
+          a[3]++;
+          a[0] += om.get(i) ? 1 : 0;
         }
         BitSet rm = store.mask(selection, reference);
         double[] rv = store.columns(reference, List.of(by))[0];
         double[] w = store.weights(reference);
         for (int i = rm.nextSetBit(0); i >= 0; i = rm.nextSetBit(i + 1)) {
-          double[] a = acc.computeIfAbsent((long) rv[i], k -> new double[3]);
+          double[] a = acc.computeIfAbsent((long) rv[i], k -> new double[4]);
           a[1] += w[i];
           a[2] += w[i] * w[i];
         }
-        acc.forEach((k, a) -> rows.add(new Row(String.valueOf(k), (long) a[0], a[1], a[2])));
+        acc.forEach((k, a) -> rows.add(new Row(String.valueOf(k), (long) a[0], a[1], a[2], (long) a[3])));
       }
       long totalN = rows.stream().mapToLong(Row::observed).sum();
       double totalB = rows.stream().mapToDouble(Row::expected).sum();
+      long totalAll = rows.stream().mapToLong(Row::observedAll).sum();
       triage.core.inference.Homogeneity h = triage.core.inference.Homogeneity.of(
           rows.stream().mapToLong(Row::observed).toArray(), rows.stream().mapToDouble(Row::expected).toArray(),
           rows.stream().mapToDouble(Row::expectedVariance).toArray());
+      SelectionShare share = SelectionShare.of(rows.stream().mapToLong(Row::observed).toArray(),
+          rows.stream().mapToLong(Row::observedAll).toArray());
+      java.util.Map<String, Double> pullOf = new java.util.HashMap<>();
+      for (int i = 0; i < rows.size(); i++) {
+        pullOf.put(rows.get(i).value(), share.pulls()[i]);
+      }
       double chi2 = h.statistic();
       int k = h.dof() + 1;
       double p = h.pValue();
@@ -114,22 +172,28 @@ public final class BreakdownCommand implements Callable<Integer> {
       for (int i = 0; i < Math.min(3, sorted.size()); i++) {
         top3 += sorted.get(i).observed() - sorted.get(i).expected();
       }
-      o.say("selection  %s, broken down by %s (%d values): observed %d, expected %.4g, excess %+.4g", where, by,
-          rows.size(), totalN, totalB, excess);
-      o.say("  %-14s %9s %11s %10s %8s", by, "observed", "expected", "excess", "local Z");
+      o.say("selection  %s, broken down by %s (%d values): observed %d of %d, expected %.4g, excess %+.4g",
+          where, by, rows.size(), totalN, totalAll, totalB, excess);
+      o.say("  %-14s %9s %11s %10s %8s %8s %6s", by, "observed", "expected", "excess", "local Z", "share",
+          "pull");
       List<Map<String, Object>> out = new ArrayList<>();
       for (int i = 0; i < sorted.size(); i++) {
         Row r = sorted.get(i);
         double z = r.expected() > 0 && r.expectedVariance() > 0 ? CountingSignificance.zBiFromBackground(
             r.observed(), r.expected(), Math.sqrt(r.expectedVariance())).z() : Double.NaN;
+        double fraction = r.observedAll() > 0 ? (double) r.observed() / r.observedAll() : Double.NaN;
+        double pull = pullOf.get(r.value());
         if (i < top) {
-          o.say("  %-14s %9d %11.4g %+10.4g %8s", r.value(), r.observed(), r.expected(),
-              r.observed() - r.expected(), Double.isNaN(z) ? "no ref." : String.format(java.util.Locale.ROOT,
-              "%.2f", z));
+          o.say("  %-14s %9d %11.4g %+10.4g %8s %8.4f %6.2f", r.value(), r.observed(), r.expected(),
+              r.observed() - r.expected(), Double.isNaN(z) ? "no ref." : z == Double.NEGATIVE_INFINITY ? "-inf"
+              : String.format(java.util.Locale.ROOT, "%.2f", z), fraction, pull);
         }
         Map<String, Object> j = new LinkedHashMap<>();
         j.put("value", r.value());
         j.put("observed", r.observed());
+        j.put("observedAll", r.observedAll());
+        j.put("share", fraction);
+        j.put("sharePull", pull);
         j.put("expected", r.expected());
         j.put("expectedStatError", Math.sqrt(r.expectedVariance()));
         j.put("excess", r.observed() - r.expected());
@@ -139,25 +203,118 @@ public final class BreakdownCommand implements Callable<Integer> {
       if (sorted.size() > top) {
         o.say("  … %d more values (--top, or --json for all)", sorted.size() - top);
       }
-      o.say("the top %d value%s hold%s %.0f%% of the excess; homogeneity of observed/expected across values: "
-          + "χ² = %.1f for %d dof, p = %.3g%s", Math.min(3, sorted.size()), sorted.size() == 1 ? "" : "s",
-          sorted.size() == 1 ? "s" : "", excess != 0 ? 100 * top3 / excess : Double.NaN, chi2,
-          Math.max(0, k - 1), p, p < 1e-3 ? " (concentrated: look for a detector or data-taking cause)" : "");
+      o.say("share of the observed events selected: %.4g overall; same share in every %s? Pearson χ² = %.1f, "
+          + "G = %.1f for %d dof, p = %.3g (G: %.3g)", totalAll > 0 ? (double) totalN / totalAll : Double.NaN, by,
+          share.pearson(), share.g(), share.dof(), share.pearsonP(), share.gP());
+      o.say("observed/expected the same in every %s? χ² = %.1f for %d dof, p = %.3g; the top %d value%s hold%s "
+          + "%.0f%% of the excess", by, chi2, Math.max(0, k - 1), p, Math.min(3, sorted.size()),
+          sorted.size() == 1 ? "" : "s", sorted.size() == 1 ? "s" : "", excess != 0 ? 100 * top3 / excess
+          : Double.NaN);
+      List<String> worst = new ArrayList<>();
+      rows.stream().filter(r -> pullOf.get(r.value()) > 3).sorted((a, b) -> Double.compare(pullOf.get(b.value()),
+          pullOf.get(a.value()))).limit(5).forEach(r -> worst.add(r.value()));
+      long used = rows.stream().filter(r -> r.observedAll() > 0).count();
+      // Sparse tables (fewer than 5 selected events per value on average): the χ² approximation fails, so
+      // the share test's p-value comes from Monte Carlo tables with the margins fixed.
+      boolean sparse = totalN < 5 * used;
+      double shareP = share.pearsonP();
+      if (sparse) {
+        shareP = SelectionShare.monteCarloP(rows.stream().mapToLong(Row::observed).toArray(),
+            rows.stream().mapToLong(Row::observedAll).toArray(), MONTE_CARLO_TABLES, MONTE_CARLO_SEED);
+        o.say("sparse table (%d selected over %d values): share p = %.3g from %d Monte Carlo tables (seed %d)",
+            totalN, used, shareP, MONTE_CARLO_TABLES, MONTE_CARLO_SEED);
+      }
+      String verdict = verdict(shareP, sparse ? Double.NaN : p, worst, by);
+      o.say("verdict    %s", verdict);
       Map<String, Object> result = new LinkedHashMap<>();
+      if (column.kind() == ColumnKind.RUN && rows.size() > 1) {
+        o.say("in run order (share selected; · is the overall share)");
+        double overall = totalAll > 0 ? (double) totalN / totalAll : 0;
+        double maxShare = rows.stream().filter(r -> r.observedAll() > 0).mapToDouble(r -> (double) r.observed()
+            / r.observedAll()).max().orElse(0);
+        int width = 30;
+        List<Map<String, Object>> order = new ArrayList<>();
+        for (int i = 0; i < rows.size(); i++) {
+          Row r = rows.get(i);
+          double f = r.observedAll() > 0 ? (double) r.observed() / r.observedAll() : Double.NaN;
+          if (rows.size() <= 60) {
+            o.say("  %-10s %8.4f %s", r.value(), f, bar(f, overall, maxShare, width));
+          }
+          Map<String, Object> e = new LinkedHashMap<>();
+          e.put("run", r.value());
+          e.put("share", f);
+          e.put("sharePull", share.pulls()[i]);
+          order.add(e);
+        }
+        if (rows.size() > 60) {
+          o.say("  (%d runs: see --json for the share of each, in run order)", rows.size());
+        }
+        result.put("runOrder", order);
+      }
       result.put("command", "breakdown");
       result.put("tool", "triage " + ToolVersion.get());
       result.put("index", index.toString());
       result.put("where", where);
       result.put("by", by);
       result.put("observed", totalN);
+      result.put("observedAll", totalAll);
       result.put("expected", totalB);
       result.put("topThreeExcessFraction", excess != 0 ? top3 / excess : Double.NaN);
+      result.put("shareChi2", share.pearson());
+      result.put("shareG", share.g());
+      result.put("shareDof", share.dof());
+      result.put("shareP", share.pearsonP());
+      result.put("shareGP", share.gP());
+      result.put("sparse", sparse);
+      result.put("shareMonteCarloP", sparse ? shareP : Double.NaN);
+      result.put("shareMonteCarloTables", sparse ? MONTE_CARLO_TABLES : 0);
+      result.put("shareMonteCarloSeed", MONTE_CARLO_SEED);
       result.put("homogeneityChi2", chi2);
       result.put("homogeneityDof", Math.max(0, k - 1));
       result.put("homogeneityP", p);
+      result.put("concentratedIn", worst);
+      result.put("verdict", verdict);
       result.put("values", out);
-      o.result(result);
+      return result;
     }
-    return ExitCodes.OK;
+  }
+
+  /** Monte Carlo tables of the share test on sparse tables, and their seed. */
+  static final int MONTE_CARLO_TABLES = 9999;
+  static final long MONTE_CARLO_SEED = 1;
+
+  /**
+   * One line: whether the selection is concentrated in some values of the column. Concentrated when the share
+   * test or the observed/expected test has p &lt; 0.001 (common practice, no source, for a flag meant to send the
+   * analyst to look); the values with a share pull above 3 are named.
+   */
+  static String verdict(double shareP, double ratioP, List<String> worst, String by) {
+    if (Double.isNaN(shareP)) {
+      return "no test (fewer than two values with events, or nothing or everything selected)";
+    }
+    if (shareP < 1e-3 || (!Double.isNaN(ratioP) && ratioP < 1e-3)) {
+      return "concentrated" + (worst.isEmpty() ? "" : " in " + by + " " + String.join(", ", worst))
+          + ": look for a detector or data-taking cause (share p = " + String.format(java.util.Locale.ROOT,
+          "%.2g", shareP) + ")";
+    }
+    if (shareP < 0.05) {
+      return "somewhat uneven (share p = " + String.format(java.util.Locale.ROOT, "%.2g", shareP) + ")"
+          + (worst.isEmpty() ? "" : ", most in " + by + " " + String.join(", ", worst)) + ": look closer";
+    }
+    return "spread evenly (share p = " + String.format(java.util.Locale.ROOT, "%.2g", shareP)
+        + "), as a real effect would be";
+  }
+
+  private static String bar(double f, double overall, double max, int width) {
+    if (Double.isNaN(f) || !(max > 0)) {
+      return "";
+    }
+    int n = (int) Math.round(f / max * width);
+    int mark = (int) Math.round(overall / max * width);
+    StringBuilder b = new StringBuilder();
+    for (int i = 0; i < Math.max(n, mark + 1); i++) {
+      b.append(i == mark ? (i < n ? '┼' : '·') : i < n ? '█' : ' ');
+    }
+    return b.toString().stripTrailing();
   }
 }

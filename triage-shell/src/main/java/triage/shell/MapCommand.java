@@ -29,12 +29,19 @@ import triage.shell.plot.HistogramChart;
 @Command(name = "map", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
     description = {"Map two columns (for example the photon's η and φ) for a selection: per cell the observed count, "
         + "the expected yield and the pull (n − b)/√(b + σ_b²), drawn in the terminal as shades of the pull "
-        + "(' ' below 1, '░' 1–2, '▒' 2–3, '▓' 3–5, '█' above 5; '-' for deficits below −2) and optionally as PNG/SVG."},
+        + "(' ' below 1, '░' 1–2, '▒' 2–3, '▓' 3–5, '█' above 5; '-' for deficits below −2) and optionally as PNG/SVG; "
+        + "then a hot-spot scan: the squares of cells with the largest local Poisson excess (Z_Bi), with the "
+        + "trials correction over every square tried."},
     footer = ExitCodes.FOOTER)
 public final class MapCommand implements Callable<Integer> {
   /** Filled by picocli. */
   @CommandLine.Spec
   CommandLine.Model.CommandSpec spec;
+
+  /** Hot-spot square size. */
+  @Option(names = "--hot-spot-size", defaultValue = "3", paramLabel = "K",
+      description = "Largest square of cells the hot-spot scan tries (default: ${DEFAULT-VALUE}).")
+  int hotSpotSize;
 
   /** Index. */
   @Option(names = "--index", required = true, paramLabel = "DIR", description = "The index folder.")
@@ -73,6 +80,9 @@ public final class MapCommand implements Callable<Integer> {
     Output o = new Output(spec, json);
     if (bins < 1 || bins > 200) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--bins must be between 1 and 200");
+    }
+    if (hotSpotSize < 1) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--hot-spot-size must be at least 1");
     }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
@@ -148,6 +158,35 @@ public final class MapCommand implements Callable<Integer> {
       o.say("%10s └%s", "", "─".repeat(2 * bins));
       o.say("largest pull %.2f at %s ≈ %.4g, %s ≈ %.4g (local; a map of %d cells will show some 3σ cells by chance)",
           worst, x, edge(range[0], range[1], worstCell[0]), y, edge(range[2], range[3], worstCell[1]), bins * bins);
+      triage.core.region.HotSpots.Result hot = triage.core.region.HotSpots.scan(n, b, b2, hotSpotSize, 5);
+      o.say("hot spots: squares of 1 to %d cells, %d tried; global p = min(1, trials × local p) (conservative)",
+          hotSpotSize, hot.trials());
+      o.say("  %-22s %-22s %9s %10s %8s %8s", x, y, "observed", "expected", "local Z", "global Z");
+      List<Map<String, Object>> spots = new ArrayList<>();
+      for (triage.core.region.HotSpots.Spot h : hot.spots()) {
+        String xs = String.format(java.util.Locale.ROOT, "[%.4g, %.4g)", edge(range[0], range[1], h.x()),
+            edge(range[0], range[1], h.x() + h.size()));
+        String ys = String.format(java.util.Locale.ROOT, "[%.4g, %.4g)", edge(range[2], range[3], h.y()),
+            edge(range[2], range[3], h.y() + h.size()));
+        o.say("  %-22s %-22s %9d %10.4g %8.2f %8.2f", xs, ys, h.observed(), h.expected(), h.localZ(), h.globalZ());
+        Map<String, Object> e = new LinkedHashMap<>();
+        e.put("xLo", edge(range[0], range[1], h.x()));
+        e.put("xHi", edge(range[0], range[1], h.x() + h.size()));
+        e.put("yLo", edge(range[2], range[3], h.y()));
+        e.put("yHi", edge(range[2], range[3], h.y() + h.size()));
+        e.put("cells", h.size());
+        e.put("observed", h.observed());
+        e.put("expected", h.expected());
+        e.put("expectedStatError", h.expectedError());
+        e.put("localZ", h.localZ());
+        e.put("globalP", h.globalP());
+        e.put("globalZ", h.globalZ());
+        spots.add(e);
+      }
+      if (hot.observedWithoutReference() > 0) {
+        o.say("note: %d observed events lie in cells without reference events (no expectation: not scanned)",
+            hot.observedWithoutReference());
+      }
       if (png != null || svg != null) {
         JFreeChart chart = chart(range, pull);
         if (png != null) {
@@ -169,6 +208,9 @@ public final class MapCommand implements Callable<Integer> {
       result.put("bins", bins);
       result.put("range", range);
       result.put("cells", cells);
+      result.put("hotSpotTrials", hot.trials());
+      result.put("hotSpots", spots);
+      result.put("observedWithoutReference", hot.observedWithoutReference());
       o.result(result);
     }
     return ExitCodes.OK;

@@ -20,6 +20,12 @@ public final class Output {
    * The width text must fit: the console's terminal width while a console runs, else {@code COLUMNS} when set,
    * else 0 (no limit: pipes and files get whole lines).
    */
+  /**
+   * Where this thread's commands also hand their result objects (the demo collects them for its report);
+   * unset, results go only to {@code --json}.
+   */
+  static final ThreadLocal<java.util.function.Consumer<Object>> RESULTS = new ThreadLocal<>();
+
   static volatile java.util.function.IntSupplier terminalWidth = Output::columnsVariable;
 
   /** Whether JSON was asked for. */
@@ -124,6 +130,10 @@ public final class Output {
       say("(table rows were cut at the terminal's width of %d columns: widen it, or use --json for everything)",
           width());
       cut = false;
+    }
+    java.util.function.Consumer<Object> sink = RESULTS.get();
+    if (sink != null) {
+      sink.accept(value);
     }
     if (!json) {
       return;

@@ -375,6 +375,18 @@ class CliTest {
     assertEquals(4.0, j.get("expected").asDouble(), 0);
     assertEquals(0.0, j.get("homogeneityChi2").asDouble(), 1e-12);
     assertEquals(2, j.get("values").size());
+    // Every observed event is selected: the share test has nothing to test, and says so.
+    assertTrue(j.get("verdict").asText().startsWith("no test"), j.toString());
+    assertEquals(2, j.get("runOrder").size());
+    // Without --by: every run, block and category column (here the run only), with the same fields.
+    Run all = run("breakdown", "--index", index.toString(), "--where", "m > 100", "--json");
+    assertEquals(0, all.code(), all.err());
+    JsonNode k = JSON.readTree(all.out());
+    assertEquals("run", k.get("by").asText());
+    assertEquals(1, k.get("observed").asLong());
+    assertEquals(2, k.get("observedAll").asLong());
+    assertTrue(k.get("sparse").asBoolean(), "1 selected over 2 values is sparse: Monte Carlo p");
+    assertEquals(1.0, k.get("shareMonteCarloP").asDouble(), 1e-12, "one of two runs selected: every table ties");
     Run bad = run("breakdown", "--index", index.toString(), "--where", "m > 0", "--by", "m");
     assertEquals(ExitCodes.INPUT, bad.code());
   }
@@ -422,6 +434,16 @@ class CliTest {
     assertEquals(0.4, Double.parseDouble(cut.group(2)), 0.03, j.toString());
     assertTrue(j.get("localZBi").asDouble() > 5, j.toString());
     assertTrue(j.get("optimisedOnTheseData").asBoolean());
+    Run w = run("derive", "--index", index.toString(), "--method", "window", "--features", "a", "--range", "0:1",
+        "--bins", "20", "--json");
+    assertEquals(0, w.code(), w.err());
+    JsonNode wj = JSON.readTree(w.out());
+    assertEquals("a BETWEEN 0.3 AND 0.4", wj.get("condition").asText(), wj.toString());
+    assertEquals(20 + 19 + 18 + 17 + 16, wj.get("windowsTried").asInt());
+    assertTrue(wj.get("bonferroniGlobalZ").asDouble() < wj.get("localZBi").asDouble());
+    Run noFeature = run("derive", "--index", index.toString(), "--method", "window");
+    assertEquals(ExitCodes.USAGE, noFeature.code());
+    assertTrue(noFeature.err().contains("scans one feature"), noFeature.err());
     Path script = dir.resolve("s.triage");
     Files.writeString(script, "derive --name bump\nselect --where \"$bump AND b < 0.5\"\n");
     Run s = run("run", "--index", index.toString(), script.toString());
@@ -445,6 +467,10 @@ class CliTest {
     assertEquals(2, n);
     assertEquals(4.0, b, 1e-12);
     assertTrue(Files.size(dir.resolve("map.png")) > 0);
+    JsonNode mj = JSON.readTree(r.out());
+    // At most 9 + 4 + 1 squares on 3 × 3 cells; squares without reference events are not tried.
+    assertTrue(mj.get("hotSpotTrials").asInt() <= 14 && mj.get("hotSpotTrials").asInt() > 0, mj.toString());
+    assertTrue(mj.get("hotSpots").size() >= 1);
   }
 
   @Test
@@ -465,7 +491,8 @@ class CliTest {
 
   @Test
   void smallDemoRunsEndToEnd() throws IOException {
-    Run r = run("demo", "--small", "--max-iterations", "200", "--out", dir.resolve("demo").toString(), "--json");
+    Run r = run("demo", "--small", "--max-iterations", "200", "--toys", "0", "--permutations", "0", "--out",
+        dir.resolve("demo").toString(), "--json");
     assertEquals(0, r.code(), r.err());
     JsonNode j = JSON.readTree(r.out());
     assertEquals("demo", j.get("command").asText());

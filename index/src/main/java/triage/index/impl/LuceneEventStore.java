@@ -899,10 +899,15 @@ public final class LuceneEventStore implements EventStore {
     writeAtomically(dir.resolve("manifest.json"), manifest.toJson().getBytes(StandardCharsets.UTF_8));
   }
 
-  /** Removes score and model files that the manifest does not reference (left by a replaced index). */
+  /**
+   * Removes score and model files that the manifest does not reference, and the toys of model versions it does
+   * not hold (left by a replaced index).
+   */
   static void removeStaleSideFiles(Path dir, Manifest manifest) throws IOException {
     Set<String> keep = new HashSet<>();
+    Set<String> versions = new HashSet<>();
     for (Manifest.Model m : manifest.models()) {
+      versions.add(m.version());
       if (m.scoreFile() != null) {
         keep.add(m.scoreFile());
       }
@@ -919,6 +924,20 @@ public final class LuceneEventStore implements EventStore {
         for (Path f : files) {
           if (!keep.contains(sub + "/" + f.getFileName())) {
             Files.deleteIfExists(f);
+          }
+        }
+      }
+    }
+    Path toys = dir.resolve("toys");
+    if (Files.isDirectory(toys)) {
+      try (DirectoryStream<Path> folders = Files.newDirectoryStream(toys, Files::isDirectory)) {
+        for (Path f : folders) {
+          if (!versions.contains(f.getFileName().toString())) {
+            try (var tree = Files.walk(f)) {
+              for (Path p : tree.sorted(java.util.Comparator.reverseOrder()).toList()) {
+                Files.deleteIfExists(p);
+              }
+            }
           }
         }
       }
