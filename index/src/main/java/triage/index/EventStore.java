@@ -56,6 +56,21 @@ public interface EventStore extends Closeable {
   double[][] columns(String sample, List<String> columns) throws IOException;
 
   /**
+   * The values of numeric columns and the nominal weights of the events a selection keeps in one sample, in row
+   * order: {@code columns[c][j]} for the j-th kept event. Reads only the kept events, so a small selection of a
+   * large sample costs little (unlike {@link #columns} followed by a mask).
+   */
+  SelectedRows rows(String sample, List<String> columns, Selection selection) throws IOException;
+
+  /**
+   * Values and weights of selected events.
+   *
+   * @param columns feature-major values
+   * @param weights nominal weights
+   */
+  record SelectedRows(double[][] columns, double[] weights) {}
+
+  /**
    * Which of a sample's events a selection keeps: bit i stands for the sample's i-th event in row order (the same
    * order as {@link #columns} and {@link #weights}).
    */

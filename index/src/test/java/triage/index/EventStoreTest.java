@@ -196,6 +196,23 @@ class EventStoreTest {
         assertEquals(sw, sums.get(s).sumOfWeights(), 4 * Math.ulp(Math.abs(sw)) + 1e-300, c.getKey());
       }
     }
+    // rows() reads only the kept events: the same values and weights as every event's columns and a mask.
+    for (String condition : cases.keySet()) {
+      Selection sel = store.where(condition);
+      for (String sample : List.of("reference", "observed")) {
+        java.util.BitSet mask = store.mask(sel, sample);
+        double[][] all = store.columns(sample, List.of("a", "c"));
+        double[] w = store.weights(sample);
+        EventStore.SelectedRows kept = store.rows(sample, List.of("a", "c"), sel);
+        assertEquals(mask.cardinality(), kept.weights().length, condition);
+        int j = 0;
+        for (int i = mask.nextSetBit(0); i >= 0; i = mask.nextSetBit(i + 1), j++) {
+          assertEquals(all[0][i], kept.columns()[0][j], 0.0);
+          assertEquals(all[1][i], kept.columns()[1][j], 0.0);
+          assertEquals(w[i], kept.weights()[j], 0.0);
+        }
+      }
+    }
     triage.core.select.WhereException e = assertThrows(triage.core.select.WhereException.class,
         () -> store.where("a > 1 AND mass < 2"));
     assertTrue(e.getMessage().contains("unknown column 'mass'"), e.getMessage());

@@ -294,15 +294,18 @@ public final class BreakdownCommand implements Callable<Integer> {
     }
     if (shareP < 1e-3 || (!Double.isNaN(ratioP) && ratioP < 1e-3)) {
       return "concentrated" + (worst.isEmpty() ? "" : " in " + by + " " + String.join(", ", worst))
-          + ": look for a detector or data-taking cause (share p = " + String.format(java.util.Locale.ROOT,
-          "%.2g", shareP) + ")";
+          + ": look for a detector or data-taking cause (share p " + pText(shareP) + ")";
     }
     if (shareP < 0.05) {
-      return "somewhat uneven (share p = " + String.format(java.util.Locale.ROOT, "%.2g", shareP) + ")"
+      return "somewhat uneven (share p " + pText(shareP) + ")"
           + (worst.isEmpty() ? "" : ", most in " + by + " " + String.join(", ", worst)) + ": look closer";
     }
-    return "spread evenly (share p = " + String.format(java.util.Locale.ROOT, "%.2g", shareP)
-        + "), as a real effect would be";
+    return "spread evenly (share p " + pText(shareP) + "), as a real effect would be";
+  }
+
+  /** "= 0.0012", or "< 1e-16" where the double's tail has no digits left. */
+  static String pText(double p) {
+    return p < 1e-16 ? "< 1e-16" : "= " + String.format(java.util.Locale.ROOT, "%.2g", p);
   }
 
   private static String bar(double f, double overall, double max, int width) {

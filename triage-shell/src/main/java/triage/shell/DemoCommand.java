@@ -403,10 +403,11 @@ public final class DemoCommand implements Callable<Integer> {
     a.put("followUpExpected", burstFollow.path("expected").asDouble());
     a.put("followUpZBi", burstFollow.path("zBi").asDouble());
     summary.add(String.format(Locale.ROOT, "artefact: the high-score events by sector: %s; by run: %s; %d of the %d are in sector %s with missing momentum above %s GeV; in the follow-up that "
-        + "selection holds %d events on %.2g expected: it did not survive the repair",
+        + "selection holds %d event%s on %.2g expected: it did not survive the repair",
         a.path("bySector").path("verdict").asText(), a.path("byRun").path("verdict").asText(),
         in.path("observed").asLong(), sel.path("observed").asLong(), sector(a), format(BURST_MET_CUT),
-        burstFollow.path("observed").asLong(), burstFollow.path("expected").asDouble()));
+        burstFollow.path("observed").asLong(), burstFollow.path("observed").asLong() == 1 ? "" : "s",
+        burstFollow.path("expected").asDouble()));
     JsonNode der = result("mass window scan");
     ObjectNode r = f.putObject("resonance");
     JsonNode best = der.path("windows").path(0);

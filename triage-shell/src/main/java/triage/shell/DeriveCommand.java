@@ -151,9 +151,10 @@ public final class DeriveCommand implements Callable<Integer> {
             throw new InputException(index, "has no feature '" + f + "' (features: " + String.join(", ", all) + ")");
           }
         }
-        double[][] obs = RankCommand.subset(store.columns(observed, use), om);
-        double[][] ref = RankCommand.subset(store.columns(reference, use), rm);
-        double[] w = RankCommand.subset(new double[][] {store.weights(reference)}, rm)[0];
+        double[][] obs = store.rows(observed, use, base).columns();
+        EventStore.SelectedRows kept = store.rows(reference, use, base);
+        double[][] ref = kept.columns();
+        double[] w = kept.weights();
         Prim.Settings settings;
         try {
           settings = new Prim.Settings(alpha, 0.002, 10, 0.25, maxCuts);
@@ -218,10 +219,10 @@ public final class DeriveCommand implements Callable<Integer> {
     if (!all.contains(f)) {
       throw new InputException(index, "has no feature '" + f + "' (features: " + String.join(", ", all) + ")");
     }
-    double[] obs = RankCommand.subset(store.columns(observed, List.of(f)), store.mask(base, observed))[0];
-    BitSet rm = store.mask(base, reference);
-    double[] ref = RankCommand.subset(store.columns(reference, List.of(f)), rm)[0];
-    double[] w = RankCommand.subset(new double[][] {store.weights(reference)}, rm)[0];
+    double[] obs = store.rows(observed, List.of(f), base).columns()[0];
+    EventStore.SelectedRows kept = store.rows(reference, List.of(f), base);
+    double[] ref = kept.columns()[0];
+    double[] w = kept.weights();
     if (obs.length == 0) {
       throw new InputException(index, "has no observed events inside --where, so there is nothing to scan");
     }

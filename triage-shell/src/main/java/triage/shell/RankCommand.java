@@ -123,9 +123,10 @@ public final class RankCommand implements Callable<Integer> {
         throw new triage.core.sample.InputException(null, "the selection keeps " + obsMask.cardinality()
             + " observed events; ranking needs at least 2");
       }
-      double[][] obs = subset(store.columns(observed, features), obsMask);
-      double[][] refAll = store.columns(reference, features);
-      double[] wAll = store.weights(reference);
+      double[][] obs = store.rows(observed, features, selection).columns();
+      // Every reference event only for the comparison with all of them; the inside comparison reads the kept ones.
+      double[][] refAll = versus != Versus.inside ? store.columns(reference, features) : null;
+      double[] wAll = versus != Versus.inside ? store.weights(reference) : null;
       Map<String, Object> result = new LinkedHashMap<>();
       result.put("command", "rank");
       result.put("tool", "triage " + ToolVersion.get());
@@ -147,8 +148,9 @@ public final class RankCommand implements Callable<Integer> {
           o.say("versus reference inside the selection: only %d reference events, skipped", refMask.cardinality());
           result.put("versusInside", null);
         } else {
-          double[][] refIn = subset(refAll, refMask);
-          double[] wIn = subset(new double[][] {wAll}, refMask)[0];
+          EventStore.SelectedRows kept = store.rows(reference, features, selection);
+          double[][] refIn = kept.columns();
+          double[] wIn = kept.weights();
           List<FeatureRanking.Row> rows = sorted(FeatureRanking.rank(features, obs, refIn, wIn, permutations,
               seed));
           print(o, "versus reference inside the selection (" + refMask.cardinality()

@@ -754,6 +754,45 @@ public final class LuceneEventStore implements EventStore {
   }
 
   @Override
+  public EventStore.SelectedRows rows(String sample, List<String> columns, Selection selection) throws IOException {
+    Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
+    long first = facts.firstRow();
+    java.util.BitSet kept = mask(selection, sample);
+    // Rank of a row among the kept ones: popcounts before each 64-bit word, then within the word.
+    long[] words = kept.toLongArray();
+    int[] before = new int[words.length + 1];
+    for (int k = 0; k < words.length; k++) {
+      before[k + 1] = before[k] + Long.bitCount(words[k]);
+    }
+    int count = before[words.length];
+    double[][] out = new double[columns.size()][count];
+    double[] w = new double[count];
+    ValueReader[] readers = new ValueReader[columns.size()];
+    for (int k = 0; k < readers.length; k++) {
+      readers[k] = valueReader(columns.get(k));
+    }
+    perLeaf(selection.inSamples(Set.of(sample)), new LeafTask<Object>() {
+      @Override
+      public Object start(LeafReaderContext leaf) {
+        return Boolean.TRUE;
+      }
+
+      @Override
+      public EventVisitor visitor(Object unused) {
+        return (b, base) -> {
+          int i = (int) (Layout.getLong(b, base + Layout.ROW) - first);
+          int j = before[i >>> 6] + Long.bitCount(words[i >>> 6] & ((1L << (i & 63)) - 1));
+          for (int k = 0; k < readers.length; k++) {
+            out[k][j] = readers[k].value(b, base);
+          }
+          w[j] = Layout.getDouble(b, base + Layout.WEIGHT);
+        };
+      }
+    });
+    return new EventStore.SelectedRows(out, w);
+  }
+
+  @Override
   public java.util.BitSet mask(Selection selection, String sample) throws IOException {
     Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     long first = facts.firstRow();

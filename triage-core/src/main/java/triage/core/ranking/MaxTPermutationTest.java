@@ -173,22 +173,9 @@ public final class MaxTPermutationTest {
     }
     final int n = observed.length;
     for (int f = 0; f < nf; f++) {
-      Arguments.notNull("features[" + f + "]", features[f]);
       Arguments.notNull("statistics[" + f + "]", statistics[f]);
-      if (features[f].length != n) {
-        throw Arguments.error("features[%d] must have %d values (one per event) but had %d", f, n,
-          features[f].length);
-      }
     }
-    if (weights != null && weights.length != n) {
-      throw Arguments.error("weights must have %d values (one per event) but had %d", n, weights.length);
-    }
-    int nObs = 0;
-    for (final boolean o : observed) {
-      nObs += o ? 1 : 0;
-    }
-    Arguments.atLeast("number of observed events", nObs, 1);
-    Arguments.atLeast("number of reference events", n - nObs, 1);
+    final int nObs = checkedObservedCount(features, weights, observed);
 
     final int[] index = new int[n];
     int io = 0;
@@ -239,6 +226,214 @@ public final class MaxTPermutationTest {
       adj[f] = (maxCount[f] + 1.0) / (permutations + 1.0);
     }
     return new Result(t, raw, adj, permutations);
+  }
+
+  /**
+   * The same test for the weighted Kolmogorov–Smirnov distance on every feature, in {@code O(n)} per feature and
+   * permutation instead of a sort: each feature's pooled values are sorted once, and a permutation only moves the
+   * labels. The permutations are those of {@link #test} with the same seed (the same shuffles of the same index
+   * array), so both give the same p-values up to ties within the relative tolerance. The features are shared out
+   * among up to {@code threads} workers, each replaying the same shuffles; the per-permutation maxima are combined
+   * in a fixed order, so the result does not depend on the thread count.
+   *
+   * @param features pooled values per feature
+   * @param weights pooled event weights (null for unit weights)
+   * @param observed labels
+   * @param threads workers, at least 1
+   * @return raw and maxT-adjusted p-values; {@code statistics} are the observed distances
+   */
+  public Result testKolmogorovSmirnov(double[][] features, double[] weights, boolean[] observed, int threads) {
+    Arguments.notNull("features", features);
+    Arguments.notNull("observed labels", observed);
+    final int nf = Arguments.atLeast("number of features", features.length, 1);
+    final int n = observed.length;
+    final int nObs = checkedObservedCount(features, weights, observed);
+    for (int f = 0; f < nf; f++) {
+      Arguments.finiteValues("features[" + f + "]", features[f]);
+    }
+    final double[] w = new double[n];
+    double total = 0;
+    for (int i = 0; i < n; i++) {
+      w[i] = weights == null ? 1 : weights[i];
+      total += w[i];
+    }
+    // Sorted order and tie-run ends per feature, once.
+    // Per feature: the sorted order, each position's weight, and whether a tie run ends there.
+    final int[][] order = new int[nf][];
+    final double[][] sortedWeight = new double[nf][n];
+    final boolean[][] runEnd = new boolean[nf][n];
+    java.util.stream.IntStream.range(0, nf).parallel().forEach(f -> {
+      final double[] v = features[f];
+      order[f] = java.util.stream.IntStream.range(0, n).boxed()
+          .sorted((a, b) -> Double.compare(v[a], v[b])).mapToInt(Integer::intValue).toArray();
+      for (int p = 0; p < n; p++) {
+        sortedWeight[f][p] = w[order[f][p]];
+        runEnd[f][p] = p == n - 1 || v[order[f][p + 1]] != v[order[f][p]];
+      }
+    });
+    final int[] start = new int[n];
+    int io = 0;
+    int ir = nObs;
+    for (int i = 0; i < n; i++) {
+      if (observed[i]) {
+        start[io++] = i;
+      } else {
+        start[ir++] = i;
+      }
+    }
+    final int obsCount = nObs;
+    final double totalWeight = total;
+    final double[] t = new double[nf];
+    {
+      final byte[] label = new byte[n];
+      final double[] wo = new double[1];
+      for (int i = 0; i < n; i++) {
+        label[i] = (byte) (observed[i] ? 1 : 0);
+        wo[0] += observed[i] ? w[i] : 0;
+      }
+      final double[] d = new double[1];
+      for (int f = 0; f < nf; f++) {
+        ksBlock(order[f], sortedWeight[f], runEnd[f], label, 1, wo, totalWeight, new double[1], d);
+        t[f] = d[0];
+      }
+    }
+    final double[] threshold = new double[nf];
+    for (int f = 0; f < nf; f++) {
+      threshold[f] = t[f] - Math.abs(t[f]) * TIE_RELATIVE - Double.MIN_NORMAL;
+    }
+    final int workers = Math.max(1, Math.min(Arguments.atLeast("threads", threads, 1), nf));
+    final long[][] rawCount = new long[workers][nf];
+    final long[] maxCount = new long[nf];
+    // Permutations go in blocks of eight: bit j of packed[e] is event e's label in the block's j-th permutation,
+    // so each feature's sorted arrays are streamed from memory once per block, not once per permutation (they do
+    // not fit in cache for large samples). Every worker replays the same shuffles for its own features; the
+    // per-permutation maxima of one chunk of permutations are combined in worker order before the next chunk.
+    final int[][] index = new int[workers][];
+    final UniformRandomProvider[] rng = new UniformRandomProvider[workers];
+    for (int k = 0; k < workers; k++) {
+      index[k] = start.clone();
+      rng[k] = RandomSource.XO_RO_SHI_RO_128_PP.create(seed);
+    }
+    final int chunk = 64 * BLOCK;
+    final double[][] maxOf = new double[workers][chunk];
+    for (int c0 = 0; c0 < permutations; c0 += chunk) {
+      final int nc = Math.min(chunk, permutations - c0);
+      java.util.stream.IntStream.range(0, workers).parallel().forEach(k -> {
+        final byte[] packed = new byte[n];
+        final double[] wo = new double[BLOCK];
+        final double[] d = new double[BLOCK];
+        final double[] co = new double[BLOCK];
+        for (int b0 = 0; b0 < nc; b0 += BLOCK) {
+          triage.core.Cancellation.check();
+          final int nb = Math.min(BLOCK, nc - b0);
+          java.util.Arrays.fill(packed, (byte) 0);
+          for (int j2 = 0; j2 < nb; j2++) {
+            PermutationSampler.shuffle(rng[k], index[k]);
+            double sum = 0;
+            for (int i2 = 0; i2 < obsCount; i2++) {
+              packed[index[k][i2]] |= (byte) (1 << j2);
+              sum += w[index[k][i2]];
+            }
+            wo[j2] = sum;
+          }
+          for (int j2 = 0; j2 < nb; j2++) {
+            maxOf[k][b0 + j2] = Double.NEGATIVE_INFINITY;
+          }
+          for (int f = k; f < nf; f += workers) {
+            ksBlock(order[f], sortedWeight[f], runEnd[f], packed, nb, wo, totalWeight, co, d);
+            for (int j2 = 0; j2 < nb; j2++) {
+              if (d[j2] >= threshold[f]) {
+                rawCount[k][f]++;
+              }
+              maxOf[k][b0 + j2] = Math.max(maxOf[k][b0 + j2], d[j2]);
+            }
+          }
+        }
+      });
+      for (int b = 0; b < nc; b++) {
+        double max = Double.NEGATIVE_INFINITY;
+        for (int k = 0; k < workers; k++) {
+          max = Math.max(max, maxOf[k][b]);
+        }
+        for (int f = 0; f < nf; f++) {
+          if (max >= threshold[f]) {
+            maxCount[f]++;
+          }
+        }
+      }
+    }
+    final double[] raw = new double[nf];
+    final double[] adj = new double[nf];
+    for (int f = 0; f < nf; f++) {
+      long r = 0;
+      for (int k = 0; k < workers; k++) {
+        r += rawCount[k][f];
+      }
+      raw[f] = (r + 1.0) / (permutations + 1.0);
+      adj[f] = (maxCount[f] + 1.0) / (permutations + 1.0);
+    }
+    return new Result(t, raw, adj, permutations);
+  }
+
+  /** Checks one value per event in every feature and weight, and at least one event of each label. */
+  private static int checkedObservedCount(double[][] features, double[] weights, boolean[] observed) {
+    final int n = observed.length;
+    for (int f = 0; f < features.length; f++) {
+      Arguments.notNull("features[" + f + "]", features[f]);
+      if (features[f].length != n) {
+        throw Arguments.error("features[%d] must have %d values (one per event) but had %d", f, n,
+          features[f].length);
+      }
+    }
+    if (weights != null && weights.length != n) {
+      throw Arguments.error("weights must have %d values (one per event) but had %d", n, weights.length);
+    }
+    int nObs = 0;
+    for (final boolean o : observed) {
+      nObs += o ? 1 : 0;
+    }
+    Arguments.atLeast("number of observed events", nObs, 1);
+    Arguments.atLeast("number of reference events", n - nObs, 1);
+    return nObs;
+  }
+
+  /** Permutations labelled together, one bit each. */
+  private static final int BLOCK = 8;
+
+  /**
+   * The weighted KS distances of {@code nb} labelings at once along one feature's sorted order. With
+   * {@code co_j} the weight labelled observed in labeling j up to a position and {@code C} all weight up to it,
+   * {@code D_j = max over run ends |co_j/wo_j − (C − co_j)/(W − wo_j)|}.
+   */
+  private static void ksBlock(int[] order, double[] sortedWeight, boolean[] runEnd, byte[] packed, int nb,
+      double[] wo, double total, double[] co, double[] d) {
+    final double[] a = new double[nb];
+    final double[] c = new double[nb];
+    for (int j = 0; j < nb; j++) {
+      a[j] = 1 / wo[j] + 1 / (total - wo[j]);
+      c[j] = 1 / (total - wo[j]);
+      co[j] = 0;
+      d[j] = 0;
+    }
+    double all = 0;
+    final int n = order.length;
+    if (nb == BLOCK) {
+      KsBlock.best().run(order, sortedWeight, runEnd, packed, a, c, d);
+      return;
+    }
+    for (int p = 0; p < n; p++) {
+      final int bits = packed[order[p]];
+      final double sw = sortedWeight[p];
+      all += sw;
+      for (int j = 0; j < nb; j++) {
+        co[j] += (bits & (1 << j)) != 0 ? sw : 0;
+      }
+      if (runEnd[p]) {
+        for (int j = 0; j < nb; j++) {
+          d[j] = Math.max(d[j], Math.abs(co[j] * a[j] - all * c[j]));
+        }
+      }
+    }
   }
 
   private static double evaluate(TwoSampleStatistic s, double[] values, double[] weights, int[] index,

@@ -110,4 +110,70 @@ class MaxTPermutationTestTest {
       (x, wx, y, wy) -> Double.NaN));
     assertThrows(RankingArgumentException.class, () -> t.test(f, null, labels(4, 2), new TwoSampleStatistic[2]));
   }
+
+  /**
+   * The sorted-once KS path gives the same statistics and p-values as the generic path with the weighted KS
+   * statistic (same shuffles), on weighted data with ties and a shifted feature, for one and three workers.
+   */
+  @Test
+  void theFastKolmogorovSmirnovPathMatchesTheGenericOne() {
+    UniformRandomProvider r = RandomSource.XO_RO_SHI_RO_128_PP.create(42L);
+    int n = 700;
+    int nf = 4;
+    double[][] x = new double[nf][n];
+    double[] w = new double[n];
+    boolean[] obs = new boolean[n];
+    for (int i = 0; i < n; i++) {
+      obs[i] = i % 7 == 0;
+      w[i] = obs[i] ? 1 : 0.2 + r.nextDouble();
+      x[0][i] = Math.floor(10 * r.nextDouble());
+      x[1][i] = r.nextDouble() + (obs[i] ? 0.15 : 0);
+      x[2][i] = r.nextDouble();
+      x[3][i] = Math.round(r.nextDouble() * 50) / 50.0;
+    }
+    WeightedKolmogorovSmirnovTest ks = WeightedKolmogorovSmirnovTest.withDefaults();
+    MaxTPermutationTest test = MaxTPermutationTest.withDefaults().withPermutations(400).withSeed(9);
+    MaxTPermutationTest.Result generic = test.test(x, w, obs, (a, wa, b, wb) -> ks.statistic(a, wa, b, wb));
+    for (int threads : new int[] {1, 3}) {
+      MaxTPermutationTest.Result fast = test.testKolmogorovSmirnov(x, w, obs, threads);
+      for (int f = 0; f < nf; f++) {
+        assertEquals(generic.statistics()[f], fast.statistics()[f], 1e-12);
+        assertEquals(generic.rawPValues()[f], fast.rawPValues()[f], 0.0, "raw p of feature " + f);
+        assertEquals(generic.adjustedPValues()[f], fast.adjustedPValues()[f], 0.0, "adjusted p of feature " + f);
+      }
+    }
+    assertTrue(generic.adjustedPValues()[1] < 0.05, "the shifted feature is found");
+  }
+
+  /** The vector and plain-Java inner loops give bit-identical distances (when the vector one is available). */
+  @Test
+  void theVectorInnerLoopIsBitIdenticalToThePlainOne() {
+    UniformRandomProvider r = RandomSource.XO_RO_SHI_RO_128_PP.create(7L);
+    int n = 5000;
+    int[] order = new int[n];
+    double[] sw = new double[n];
+    boolean[] runEnd = new boolean[n];
+    byte[] packed = new byte[n];
+    for (int p = 0; p < n; p++) {
+      order[p] = (p * 7919) % n;
+      sw[p] = r.nextDouble() < 0.1 ? 1 : 0.05 + r.nextDouble();
+      runEnd[p] = r.nextDouble() < 0.9 || p == n - 1;
+      packed[p] = (byte) r.nextInt(256);
+    }
+    double[] a = new double[8];
+    double[] c = new double[8];
+    for (int j = 0; j < 8; j++) {
+      c[j] = 1 / (1000 + 10 * r.nextDouble());
+      a[j] = 1 / (200 + r.nextDouble()) + c[j];
+    }
+    double[] scalar = new double[8];
+    double[] best = new double[8];
+    KsBlock.scalar().run(order, sw, runEnd, packed, a, c, scalar);
+    KsBlock.best().run(order, sw, runEnd, packed, a, c, best);
+    for (int j = 0; j < 8; j++) {
+      assertEquals(Double.doubleToRawLongBits(scalar[j]), Double.doubleToRawLongBits(best[j]), "lane " + j);
+      assertTrue(scalar[j] > 0);
+    }
+    System.err.println("KS inner loop in use: " + KsBlock.best().getClass().getSimpleName());
+  }
 }

@@ -61,6 +61,31 @@ class WeightedRocAucTest {
     }
   }
 
+  /**
+   * auc-sklearn.txt [C]: scikit-learn 1.2.1 (Debian 12's python3-sklearn) roc_auc_score with sample weights, the
+   * observed sample labelled 1, on the cases of two-sample-cases.txt (generate_auc_sklearn.py). 1e-12 relative.
+   */
+  @Test
+  void weightedAucAgreesWithScikitLearn() throws java.io.IOException {
+    java.util.Map<String, Cases.Case> byName = new java.util.HashMap<>();
+    Cases.all().forEach(c -> byName.put(c.name(), c));
+    int checked = 0;
+    try (java.io.BufferedReader r = new java.io.BufferedReader(new java.io.InputStreamReader(
+        WeightedRocAucTest.class.getResourceAsStream("auc-sklearn.txt"), java.nio.charset.StandardCharsets.UTF_8))) {
+      for (String line = r.readLine(); line != null; line = r.readLine()) {
+        if (line.startsWith("#") || line.isBlank()) {
+          continue;
+        }
+        String[] f = line.trim().split("\\s+");
+        Cases.Case c = byName.get(f[0]);
+        assertRelative(Double.parseDouble(f[1]), AUC.statistic(c.get("x"), c.get("wx"), c.get("y"), c.get("wy")),
+            1e-12, "scikit-learn AUC " + f[0]);
+        checked++;
+      }
+    }
+    assertEquals(6, checked);
+  }
+
   @Test
   void edgeCases() {
     final double[] x = {1, 2, 3};

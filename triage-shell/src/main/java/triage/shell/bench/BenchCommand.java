@@ -116,7 +116,8 @@ public final class BenchCommand implements Runnable {
 
   /** {@code triage bench select}. */
   @Command(name = "select", mixinStandardHelpOptions = true,
-      description = "Box selection (about 1%% of events) plus count and a 100-bin histogram: median and p95 ms.")
+      description = "Box selection (about 1%% of events) plus count and a 100-bin histogram, a 20-step threshold "
+          + "scan, and the ranking of every feature with 1,000 permutations inside a 1%% box: median and p95 ms.")
   static final class SelectBench extends Common implements Callable<Integer> {
     /** Filled by picocli. */
     @CommandLine.Spec
@@ -173,12 +174,80 @@ public final class BenchCommand implements Runnable {
               store.manifest().spec().columns().features().size(), 100.0 * selected / repeat / total);
           o.say("box selection + per-sample count and Σw, Σw² + 100-bin histogram: median %.1f ms, p95 %.1f ms, "
               + "min %.1f ms (%d runs)", ms[repeat / 2], ms[(int) Math.ceil(0.95 * repeat) - 1], ms[0], repeat);
+          // A threshold scan: x2 > c for 20 thresholds, per-sample sums at each (what 'triage scan' does on a score).
+          double[] scan = new double[repeat];
+          for (int i = -5; i < repeat; i++) {
+            long t0 = System.nanoTime();
+            long check = 0;
+            for (int k = 0; k < 20; k++) {
+              double c = 0.5 + 0.025 * k + 1e-4 * Math.floorMod(i, 7);
+              check += store.sums(Selection.all().and(new Selection.Range("x2", c, Double.POSITIVE_INFINITY)))
+                  .get(0).count();
+            }
+            if (i >= 0) {
+              scan[i] = (System.nanoTime() - t0) / 1e6;
+            }
+            if (check < 0) {
+              throw new IllegalStateException("negative count");
+            }
+          }
+          Arrays.sort(scan);
+          o.say("threshold scan, 20 thresholds × per-sample sums: median %.1f ms, p95 %.1f ms (%d runs)",
+              scan[repeat / 2], scan[(int) Math.ceil(0.95 * repeat) - 1], repeat);
+          rank(o, store);
         }
       } finally {
         cleanUp(folder);
       }
       return ExitCodes.OK;
     }
+  }
+
+  /** Permutations of the ranking benchmark. */
+  static final int RANK_PERMUTATIONS = 1000;
+
+  /**
+   * Ranking inside a 1% box: every feature of the selected observed events against the reference inside the box,
+   * with {@link #RANK_PERMUTATIONS} permutations (what 'triage rank' does for its comparison inside a selection),
+   * columns fetched from the index included. Three timed runs after one warm-up.
+   */
+  private static void rank(Output o, EventStore store) throws IOException {
+    List<String> names = store.manifest().spec().columns().features();
+    Selection box = Selection.all().and(new Selection.Range("x0", 0.3, 0.4)).and(new Selection.Range("x1", 0.3,
+        0.4));
+    double[] ms = new double[3];
+    int nObs = 0;
+    int nRef = 0;
+    for (int i = -1; i < ms.length; i++) {
+      long t0 = System.nanoTime();
+      double[][] obs = store.rows("observed", names, box).columns();
+      EventStore.SelectedRows r = store.rows("reference", names, box);
+      double[][] ref = r.columns();
+      double[] w = r.weights();
+      List<triage.core.ranking.FeatureRanking.Row> rows = triage.core.ranking.FeatureRanking.rank(names, obs, ref,
+          w, RANK_PERMUTATIONS, 1);
+      if (i >= 0) {
+        ms[i] = (System.nanoTime() - t0) / 1e6;
+      }
+      nObs = obs[0].length;
+      nRef = ref[0].length;
+      if (rows.size() != names.size()) {
+        throw new IllegalStateException("ranking lost a feature");
+      }
+    }
+    Arrays.sort(ms);
+    o.say("ranking %d features, %d permutations, %d observed against %d reference events in the box: median %.0f "
+        + "ms, max %.0f ms (3 runs)", names.size(), RANK_PERMUTATIONS, nObs, nRef, ms[1], ms[2]);
+    long t0 = System.nanoTime();
+    double[][] obs = store.rows("observed", names, box).columns();
+    EventStore.SelectedRows r = store.rows("reference", names, box);
+    double[][] ref = r.columns();
+    double[] w = r.weights();
+    long t1 = System.nanoTime();
+    triage.core.ranking.FeatureRanking.rank(names, obs, ref, w, 0, 1);
+    long t2 = System.nanoTime();
+    o.say("  of which: reading the columns %.0f ms, the measures without permutations %.0f ms", (t1 - t0) / 1e6,
+        (t2 - t1) / 1e6);
   }
 
   /** {@code triage bench fit}. */
