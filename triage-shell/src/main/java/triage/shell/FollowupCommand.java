@@ -126,13 +126,26 @@ public final class FollowupCommand implements Callable<Integer> {
     for (var v : f.variations().entrySet()) {
       o.say("  %-16s expected up %.4g, down %.4g", v.getKey(), v.getValue()[0], v.getValue()[1]);
     }
-    o.say("significance  Z_Bi = %.2f (one-sided p = %.3g); Asimov Z with σ_b at s = n − b: %.2f", f.zBi(), f.pBi(),
-        f.zAsimov());
-    o.say("upper limit   s < %.3g at 95%% CL (CLs)", f.clsUpperLimit95());
+    if (f.expected() > 0) {
+      o.say("significance  Z_Bi = %.2f (one-sided p = %.3g); Asimov Z with σ_b at s = n − b: %.2f", f.zBi(),
+          f.pBi(), f.zAsimov());
+    } else {
+      o.say("significance  none: the follow-up reference has no events in the region (expected 0), so the %d "
+          + "observed events have no background estimate to be compared with (a larger reference sample would "
+          + "give one)", f.observed());
+    }
+    if (Double.isNaN(f.clsUpperLimit95())) {
+      o.say("upper limit   not computed (no background estimate)");
+    } else {
+      o.say("upper limit   s < %.3g at 95%% CL (CLs)", f.clsUpperLimit95());
+    }
     o.say("discovery     n = %d, b = %.4g (local Z_Bi %.2f, optimised on those data); predicted follow-up "
         + "excess %.3g; compatibility z = %.2f", d.observed(), d.expected(), d.localZBi(), f.predictedSignal(),
         f.compatibilityZ());
-    o.say("sensitivity   the follow-up sample would have to grow by %.3g× for an expected 5σ", f.growthFor5Sigma());
+    if (Double.isFinite(f.growthFor5Sigma())) {
+      o.say("sensitivity   the follow-up sample would have to grow by %.3g× for an expected 5σ",
+          f.growthFor5Sigma());
+    }
     o.say("note: a p-value is not the probability that a signal is real; the discovery significance is biased "
         + "upwards, this one is not (the region was frozen before these data were read). Defer to your "
         + "collaboration's statistical review.");
