@@ -10,11 +10,11 @@ import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 import triage.core.inference.CountingSignificance;
+import triage.core.region.ThresholdScan;
 import triage.core.provenance.ToolVersion;
 import triage.core.sample.Role;
 import triage.index.EventStore;
 import triage.index.Manifest;
-import triage.index.SampleSums;
 
 /** {@code triage scan}: observed against expected above a sequence of score thresholds. */
 @Command(name = "scan", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
@@ -53,28 +53,23 @@ public final class ScanCommand implements Callable<Integer> {
       Manifest m = store.manifest();
       String column = model != null ? "score:" + model : EventsCommand.latestScore(m);
       String observed = m.samples().get(Roles.ordinal(m, Role.OBSERVED)).name();
-      double[] f = store.columns(observed, List.of(column))[0].clone();
-      java.util.Arrays.sort(f);
+      String reference = m.samples().get(Roles.ordinal(m, Role.REFERENCE)).name();
+      double[] f = store.columns(observed, List.of(column))[0];
+      EventStore.SelectedRows ref = store.rows(reference, List.of(column), triage.index.Selection.all());
       o.say("%-12s %9s %12s %10s %10s %8s", "f > c", "observed", "expected", "MC error", "excess", "local Z");
       List<Map<String, Object>> rows = new ArrayList<>();
-      for (int k = 0; k < steps; k++) {
-        // Quantiles from the median up to the top 1%: q = 0.5 + 0.49·k/(steps − 1).
-        double q = steps == 1 ? 0.5 : 0.5 + 0.49 * k / (steps - 1);
-        double c = f[Math.min(f.length - 1, (int) (q * f.length))];
-        List<SampleSums> sums = store.sums(store.where(column + " > " + c));
-        SampleSums n = sums.get(Roles.ordinal(m, Role.OBSERVED));
-        SampleSums b = sums.get(Roles.ordinal(m, Role.REFERENCE));
-        double z = b.sumOfWeights() > 0 && b.statisticalError() > 0
-            ? CountingSignificance.zBiFromBackground(n.count(), b.sumOfWeights(), b.statisticalError()).z()
-            : Double.NaN;
-        o.say("%-12.5g %9d %12.5g %10.3g %10.4g %8.2f", c, n.count(), b.sumOfWeights(), b.statisticalError(),
-            n.count() - b.sumOfWeights(), z);
+      for (ThresholdScan.Row r : ThresholdScan.scan(f, ref.columns()[0], ref.weights(), steps)) {
+        double b = r.expected();
+        double err = r.expectedError();
+        long n = r.observed();
+        double z = b > 0 && err > 0 ? CountingSignificance.zBiFromBackground(n, b, err).z() : Double.NaN;
+        o.say("%-12.5g %9d %12.5g %10.3g %10.4g %8.2f", r.threshold(), n, b, err, n - b, z);
         Map<String, Object> row = new LinkedHashMap<>();
-        row.put("threshold", c);
-        row.put("observed", n.count());
-        row.put("expected", b.sumOfWeights());
-        row.put("expectedStatError", b.statisticalError());
-        row.put("excess", n.count() - b.sumOfWeights());
+        row.put("threshold", r.threshold());
+        row.put("observed", n);
+        row.put("expected", b);
+        row.put("expectedStatError", err);
+        row.put("excess", n - b);
         row.put("localZBi", z);
         rows.add(row);
       }

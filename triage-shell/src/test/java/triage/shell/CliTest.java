@@ -177,6 +177,21 @@ class CliTest {
     assertEquals(0, rank.code(), rank.err());
     assertTrue(JSON.readTree(rank.out()).get("attribution").get("m").asDouble() > 0, rank.out());
     assertTrue(Files.exists(index.resolve("models/m1.json")));
+    // The one-pass threshold scan gives what a selection at each threshold gives.
+    Run scan = run("scan", "--index", index.toString(), "--steps", "7", "--json");
+    assertEquals(0, scan.code(), scan.err());
+    JsonNode rows = JSON.readTree(scan.out()).get("rows");
+    assertEquals(7, rows.size());
+    for (JsonNode row : rows) {
+      Run at = run("select", "--index", index.toString(), "--where", "score:m1 > " + row.get("threshold").asText(),
+          "--json");
+      JsonNode cmp = JSON.readTree(at.out()).get("comparisons").get(0);
+      assertEquals(cmp.get("observed").asLong(), row.get("observed").asLong(), row.toString());
+      assertEquals(cmp.get("expected").asDouble(), row.get("expected").asDouble(),
+          1e-12 * cmp.get("expected").asDouble(), row.toString());
+      assertEquals(cmp.get("expectedStatError").asDouble(), row.get("expectedStatError").asDouble(),
+          1e-12 * cmp.get("expectedStatError").asDouble(), row.toString());
+    }
   }
 
   @Test
