@@ -59,6 +59,8 @@ public final class ToyChart {
         hi = Math.max(hi, t);
       }
     }
+    // The bins span the toys (so they stay readable when t_obs lies far beyond them); the axis reaches t_obs.
+    double toyHi = hi > 0 ? 1.05 * hi : 1;
     if (Double.isFinite(observed)) {
       hi = Math.max(hi, observed);
     }
@@ -68,7 +70,7 @@ public final class ToyChart {
       lo = Math.min(lo, t);
     }
     int bins = Math.max(10, Math.min(50, (int) Math.round(Math.sqrt(toys.length) * 2)));
-    double width = (hi - lo) / bins;
+    double width = (toyHi - lo) / bins;
     XYIntervalSeriesCollection bars = new XYIntervalSeriesCollection();
     bars.addSeries(histogram("null toys (" + toys.length + ")", toys, lo, width, bins));
     if (signal != null && signal.length > 0) {
@@ -88,9 +90,11 @@ public final class ToyChart {
     XYSeriesCollection curves = new XYSeriesCollection();
     double scale = toys.length * width;
     if (Double.isFinite(fittedDof)) {
-      curves.addSeries(density(String.format(Locale.ROOT, "fitted χ²(%.2f)", fittedDof), fittedDof, lo, hi, scale));
+      curves.addSeries(density(String.format(Locale.ROOT, "fitted χ²(%.2f)", fittedDof), fittedDof, lo,
+          curveHi(toyHi, hi, fittedDof), scale));
     }
-    curves.addSeries(density("χ²(" + parameters + " parameters)", parameters, lo, hi, scale));
+    curves.addSeries(density("χ²(" + parameters + " parameters)", parameters, lo, curveHi(toyHi, hi, parameters),
+        scale));
     XYLineAndShapeRenderer lines = new XYLineAndShapeRenderer(true, false);
     int s = 0;
     if (Double.isFinite(fittedDof)) {
@@ -105,8 +109,10 @@ public final class ToyChart {
     if (Double.isFinite(observed)) {
       ValueMarker m = new ValueMarker(observed, new Color(180, 20, 20), new BasicStroke(2f));
       m.setLabel(String.format(Locale.ROOT, "t_obs = %.4g", observed));
-      m.setLabelAnchor(RectangleAnchor.TOP_RIGHT);
-      m.setLabelTextAnchor(TextAnchor.TOP_LEFT);
+      // Label on the side with room: left of the line when it sits at the right of the plot.
+      boolean right = observed > lo + 0.7 * (hi - lo);
+      m.setLabelAnchor(right ? RectangleAnchor.TOP_LEFT : RectangleAnchor.TOP_RIGHT);
+      m.setLabelTextAnchor(right ? TextAnchor.TOP_RIGHT : TextAnchor.TOP_LEFT);
       m.setLabelPaint(new Color(180, 20, 20));
       plot.addDomainMarker(m);
     }
@@ -163,6 +169,11 @@ public final class ToyChart {
     HistogramChart.png(chart, png, 900, 600);
     HistogramChart.svg(chart, svg, 900, 600);
     return List.of(png, svg);
+  }
+
+  /** Where a χ² curve is drawn to: far enough past the toys and its own bulk, not beyond the axis. */
+  private static double curveHi(double toyHi, double axisHi, double dof) {
+    return Math.min(axisHi, Math.max(2 * toyHi, dof + 10 * Math.sqrt(2 * dof)));
   }
 
   private static XYIntervalSeries histogram(String name, double[] values, double lo, double width, int bins) {
