@@ -214,9 +214,10 @@ public final class BreakdownCommand implements Callable<Integer> {
       rows.stream().filter(r -> pullOf.get(r.value()) > 3).sorted((a, b) -> Double.compare(pullOf.get(b.value()),
           pullOf.get(a.value()))).limit(5).forEach(r -> worst.add(r.value()));
       long used = rows.stream().filter(r -> r.observedAll() > 0).count();
-      // Sparse tables (fewer than 5 selected events per value on average): the χ² approximation fails, so
+      // Sparse tables (fewer than 5 selected, or not selected, events per value on average): the χ²
+      // approximation fails, so
       // the share test's p-value comes from Monte Carlo tables with the margins fixed.
-      boolean sparse = totalN < 5 * used;
+      boolean sparse = Math.min(totalN, totalAll - totalN) < 5 * used;
       double shareP = share.pearsonP();
       if (sparse) {
         shareP = SelectionShare.monteCarloP(rows.stream().mapToLong(Row::observed).toArray(),

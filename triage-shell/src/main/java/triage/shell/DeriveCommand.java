@@ -243,7 +243,12 @@ public final class DeriveCommand implements Callable<Integer> {
     } catch (IllegalArgumentException e) {
       throw new CommandLine.ParameterException(spec.commandLine(), e.getMessage());
     }
-    WindowScan.Result scan = WindowScan.scan(obs, ref, w, grid, 5);
+    WindowScan.Result scan;
+    try {
+      scan = WindowScan.scan(obs, ref, w, grid, 5);
+    } catch (IllegalArgumentException e) {
+      throw new InputException(index, e.getMessage());
+    }
     o.say("window scan of %s over [%s, %s] in %d bins, widths %d to %d bins: %d windows tried", f, plain(lo),
         plain(hi), bins, grid.minBins(), grid.maxBins(), scan.windowsTried());
     o.say("  %-28s %9s %11s %9s %8s", "window", "observed", "expected", "± stat", "local Z");
@@ -267,6 +272,10 @@ public final class DeriveCommand implements Callable<Integer> {
     if (scan.outsideRange() > 0) {
       o.say("note: %d observed events lie outside the scanned range (not scanned)", scan.outsideRange());
     }
+    if (scan.observedWithoutReference() > 0) {
+      o.say("note: %d observed events lie in bins without reference events (no expectation; windows of only "
+          + "such bins are not tried)", scan.observedWithoutReference());
+    }
     result.put("feature", f);
     result.put("range", List.of(lo, hi));
     result.put("bins", bins);
@@ -276,6 +285,7 @@ public final class DeriveCommand implements Callable<Integer> {
     result.put("bonferroniGlobalP", scan.bonferroniP());
     result.put("bonferroniGlobalZ", scan.bonferroniZ());
     result.put("observedOutsideRange", scan.outsideRange());
+    result.put("observedWithoutReference", scan.observedWithoutReference());
     return and(where, f + " BETWEEN " + plain(scan.best().lo()) + " AND " + plain(scan.best().hi()));
   }
 

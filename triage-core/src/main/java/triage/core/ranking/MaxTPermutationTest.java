@@ -255,6 +255,9 @@ public final class MaxTPermutationTest {
     double total = 0;
     for (int i = 0; i < n; i++) {
       w[i] = weights == null ? 1 : weights[i];
+      if (!Double.isFinite(w[i])) {
+        throw Arguments.error("weight %d must be finite but was %s", i, w[i]);
+      }
       total += w[i];
     }
     // Sorted order and tie-run ends per feature, once.
@@ -294,6 +297,10 @@ public final class MaxTPermutationTest {
       final double[] d = new double[1];
       for (int f = 0; f < nf; f++) {
         ksBlock(order[f], sortedWeight[f], runEnd[f], label, 1, wo, totalWeight, new double[1], d);
+        if (Double.isNaN(d[0])) {
+          throw Arguments.error("statistic of feature %d must not be NaN (observed or reference weight sums to 0)",
+              f);
+        }
         t[f] = d[0];
       }
     }
@@ -342,10 +349,13 @@ public final class MaxTPermutationTest {
           for (int f = k; f < nf; f += workers) {
             ksBlock(order[f], sortedWeight[f], runEnd[f], packed, nb, wo, totalWeight, co, d);
             for (int j2 = 0; j2 < nb; j2++) {
-              if (d[j2] >= threshold[f]) {
+              // A relabeling whose group weight is not positive (possible with negative weights) has no
+              // defined distance: it counts as at least as extreme (conservative), never as left out.
+              final double dj = Double.isNaN(d[j2]) ? Double.POSITIVE_INFINITY : d[j2];
+              if (dj >= threshold[f]) {
                 rawCount[k][f]++;
               }
-              maxOf[k][b0 + j2] = Math.max(maxOf[k][b0 + j2], d[j2]);
+              maxOf[k][b0 + j2] = Math.max(maxOf[k][b0 + j2], dj);
             }
           }
         }

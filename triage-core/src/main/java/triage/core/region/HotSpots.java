@@ -65,13 +65,17 @@ public final class HotSpots {
     long[][] pn = new long[nx + 1][ny + 1];
     double[][] pb = new double[nx + 1][ny + 1];
     double[][] pb2 = new double[nx + 1][ny + 1];
+    // Cells holding reference events, counted exactly: rounding leftovers of the weight prefix sums must not make
+    // a square without reference look like one with a tiny expectation.
+    long[][] pc = new long[nx + 1][ny + 1];
     long orphan = 0;
     for (int i = 0; i < nx; i++) {
       for (int j = 0; j < ny; j++) {
         pn[i + 1][j + 1] = n[i][j] + pn[i][j + 1] + pn[i + 1][j] - pn[i][j];
         pb[i + 1][j + 1] = b[i][j] + pb[i][j + 1] + pb[i + 1][j] - pb[i][j];
         pb2[i + 1][j + 1] = b2[i][j] + pb2[i][j + 1] + pb2[i + 1][j] - pb2[i][j];
-        orphan += b[i][j] > 0 ? 0 : n[i][j];
+        pc[i + 1][j + 1] = (b2[i][j] > 0 ? 1 : 0) + pc[i][j + 1] + pc[i + 1][j] - pc[i][j];
+        orphan += b2[i][j] > 0 ? 0 : n[i][j];
       }
     }
     List<double[]> tried = new ArrayList<>();
@@ -81,7 +85,8 @@ public final class HotSpots {
           long count = pn[i + size][j + size] - pn[i][j + size] - pn[i + size][j] + pn[i][j];
           double exp = pb[i + size][j + size] - pb[i][j + size] - pb[i + size][j] + pb[i][j];
           double var = pb2[i + size][j + size] - pb2[i][j + size] - pb2[i + size][j] + pb2[i][j];
-          if (!(exp > 1e-12 && var > 0)) {
+          long cells = pc[i + size][j + size] - pc[i][j + size] - pc[i + size][j] + pc[i][j];
+          if (cells == 0 || !(exp > 0 && var > 0)) {
             continue;
           }
           CountingSignificance.ZBiResult z = CountingSignificance.zBiFromBackground(count, exp, Math.sqrt(var));

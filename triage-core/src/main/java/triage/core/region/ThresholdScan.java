@@ -40,6 +40,16 @@ public final class ThresholdScan {
       throw new IllegalArgumentException("the scan needs at least one step, one observed event and one weight per "
           + "reference event");
     }
+    for (double x : observed) {
+      if (!Double.isFinite(x)) {
+        throw new IllegalArgumentException("observed scores must be finite, got " + x);
+      }
+    }
+    for (double x : reference) {
+      if (!Double.isFinite(x)) {
+        throw new IllegalArgumentException("reference scores must be finite, got " + x);
+      }
+    }
     double[] f = observed.clone();
     java.util.Arrays.sort(f);
     double[] c = new double[steps];

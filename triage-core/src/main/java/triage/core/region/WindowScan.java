@@ -18,6 +18,9 @@ import triage.core.inference.Significance;
  * {@code O(bins × widths)}.
  */
 public final class WindowScan {
+  /** The most windows one scan compares. */
+  public static final long MAX_WINDOWS = 1_000_000;
+
   private WindowScan() {
     // no instance
   }
@@ -44,6 +47,10 @@ public final class WindowScan {
         throw new IllegalArgumentException("window widths must satisfy 1 <= min <= max <= bins (" + bins
             + "), got " + minBins + ".." + maxBins);
       }
+      if ((long) bins * (maxBins - minBins + 1) > MAX_WINDOWS) {
+        throw new IllegalArgumentException("at most " + MAX_WINDOWS + " windows may be tried: fewer bins or "
+            + "widths, please (" + bins + " bins × " + (maxBins - minBins + 1) + " widths)");
+      }
     }
 
     /** Upper edge of bin {@code k - 1}, i.e. edge number k. */
@@ -51,7 +58,7 @@ public final class WindowScan {
       return k == bins ? hi : lo + (hi - lo) * k / bins;
     }
 
-    /** Number of windows the scan tries: {@code Σ_{k=min..max} (bins − k + 1)}. */
+    /** Number of windows on the grid: {@code Σ_{k=min..max} (bins − k + 1)} (those without reference are skipped). */
     public int windows() {
       int n = 0;
       for (int k = minBins; k <= maxBins; k++) {
@@ -84,9 +91,11 @@ public final class WindowScan {
    * @param bonferroniP {@code min(1, windowsTried × best.localP)}
    * @param bonferroniZ its Z (one-sided)
    * @param outsideRange observed events outside the grid (not scanned, counted so nothing is silently dropped)
+   * @param observedWithoutReference observed events in bins without reference events: no expectation to compare
+   *     with, so windows made only of such bins are not tried
    */
   public record Result(Window best, List<Window> top, int windowsTried, double bonferroniP, double bonferroniZ,
-      long outsideRange) {}
+      long outsideRange, long observedWithoutReference) {}
 
   /**
    * Scans one feature.
@@ -104,6 +113,7 @@ public final class WindowScan {
     }
     int nb = grid.bins();
     long[] n = new long[nb + 1];
+    long[] refCount = new long[nb + 1];
     double[] b = new double[nb + 1];
     double[] b2 = new double[nb + 1];
     long outside = 0;
@@ -118,12 +128,18 @@ public final class WindowScan {
     for (int i = 0; i < reference.length; i++) {
       int k = bin(grid, reference[i]);
       if (k >= 0) {
+        refCount[k + 1]++;
         b[k + 1] += weights[i];
         b2[k + 1] += weights[i] * weights[i];
       }
     }
+    long orphan = 0;
+    for (int k = 1; k <= nb; k++) {
+      orphan += refCount[k] == 0 ? n[k] : 0;
+    }
     for (int k = 1; k <= nb; k++) {
       n[k] += n[k - 1];
+      refCount[k] += refCount[k - 1];
       b[k] += b[k - 1];
       b2[k] += b2[k - 1];
     }
@@ -131,21 +147,18 @@ public final class WindowScan {
     for (int start = 0; start < nb; start++) {
       for (int width = grid.minBins(); width <= grid.maxBins() && start + width <= nb; width++) {
         int end = start + width;
-        long count = n[end] - n[start];
         double exp = b[end] - b[start];
         double err = Math.sqrt(Math.max(0, b2[end] - b2[start]));
-        double p;
-        double z;
-        if (exp > 0 && err > 0) {
-          CountingSignificance.ZBiResult r = CountingSignificance.zBiFromBackground(count, exp, err);
-          p = r.pValue();
-          z = r.z();
-        } else {
-          p = count > 0 ? 0 : 1;
-          z = Double.NEGATIVE_INFINITY;
+        if (refCount[end] == refCount[start] || !(exp > 0 && err > 0)) {
+          continue;
         }
-        all.add(new Window(grid.edge(start), grid.edge(end), count, exp, err, p, z));
+        long count = n[end] - n[start];
+        CountingSignificance.ZBiResult r = CountingSignificance.zBiFromBackground(count, exp, err);
+        all.add(new Window(grid.edge(start), grid.edge(end), count, exp, err, r.pValue(), r.z()));
       }
+    }
+    if (all.isEmpty()) {
+      throw new IllegalArgumentException("no window of the grid holds reference events: nothing to compare with");
     }
     List<Window> sorted = new ArrayList<>(all);
     sorted.sort(Comparator.comparingDouble(Window::localZ).reversed());
@@ -161,7 +174,7 @@ public final class WindowScan {
     }
     int trials = all.size();
     double pGlobal = Math.min(1, trials * best.localP());
-    return new Result(best, List.copyOf(top), trials, pGlobal, Significance.zFromP(pGlobal), outside);
+    return new Result(best, List.copyOf(top), trials, pGlobal, Significance.zFromP(pGlobal), outside, orphan);
   }
 
   /** The bin of x, or −1 outside {@code [lo, hi]} (the upper edge belongs to the last bin). */

@@ -176,4 +176,21 @@ class MaxTPermutationTestTest {
     }
     System.err.println("KS inner loop in use: " + KsBlock.best().getClass().getSimpleName());
   }
+
+  /** Non-finite weights are refused; relabelings without a positive group weight count as extreme, not as absent. */
+  @Test
+  void theFastPathRefusesBadWeightsAndCountsUndefinedRelabelingsAsExtreme() {
+    double[][] x = {{0.1, 0.2, 0.3, 0.4, 0.5, 0.6}};
+    boolean[] obs = {true, false, false, false, false, false};
+    MaxTPermutationTest test = MaxTPermutationTest.withDefaults().withPermutations(99).withSeed(3);
+    assertThrows(RankingArgumentException.class, () -> test.testKolmogorovSmirnov(x,
+        new double[] {1, Double.NaN, 1, 1, 1, 1}, obs, 1));
+    // The observed labeling itself without a distance: refused, as in the generic path.
+    assertThrows(RankingArgumentException.class, () -> test.testKolmogorovSmirnov(x,
+        new double[] {0, 1, 1, 1, 1, 1}, obs, 1));
+    // Event 5 weighs 0: a relabeling that draws it as the one observed event has no observed weight and no
+    // distance (one in six of them); such relabelings must raise the p-value, never lower it.
+    MaxTPermutationTest.Result r = test.testKolmogorovSmirnov(x, new double[] {1, 1, 1, 1, 1, 0}, obs, 1);
+    assertTrue(r.rawPValues()[0] >= 1.0 / 6 - 0.1, "p " + r.rawPValues()[0]);
+  }
 }

@@ -66,6 +66,27 @@ class HotSpotsTest {
     assertEquals(n[0][0], res.observedWithoutReference());
   }
 
+  /** Rounding leftovers of the prefix sums never make a square without reference events look tried. */
+  @Test
+  void squaresWithoutReferenceAreNeverTried() {
+    long[][] n = new long[6][6];
+    double[][] b = new double[6][6];
+    double[][] b2 = new double[6][6];
+    for (int i = 0; i < 6; i++) {
+      for (int j = 0; j < 6; j++) {
+        // Weights whose sums do not cancel exactly; the right half of the map has no reference at all.
+        b[i][j] = j < 3 ? 0.1 + 1e7 * (i == 0 && j == 0 ? 1 : 0) : 0;
+        b2[i][j] = j < 3 ? b[i][j] * b[i][j] : 0;
+        n[i][j] = j < 3 ? 0 : 3;
+      }
+    }
+    HotSpots.Result res = HotSpots.scan(n, b, b2, 3, 5);
+    for (HotSpots.Spot s : res.spots()) {
+      assertTrue(s.y() < 3, "a square with reference cells: " + s);
+    }
+    assertEquals(3 * 18, res.observedWithoutReference());
+  }
+
   /**
    * Without a signal the trials-corrected p-value is conservative: over 300 null maps (12 × 12 cells, squares up
    * to 3, seeds fixed) the rate of global p ≤ 0.05 must not exceed 0.05 by more than 2.5 binomial standard

@@ -121,7 +121,31 @@ class WindowScanTest {
   }
 
   @Test
+  void binsWithoutReferenceAreNotTriedButTheirEventsAreCounted() {
+    // Reference only on [0, 0.5); ten observed events at 0.9 where there is no expectation at all.
+    double[] ref = new double[1000];
+    double[] w = new double[ref.length];
+    for (int i = 0; i < ref.length; i++) {
+      ref[i] = 0.5 * i / ref.length;
+      w[i] = 0.1;
+    }
+    double[] obs = new double[110];
+    for (int i = 0; i < 100; i++) {
+      obs[i] = 0.5 * i / 100;
+    }
+    java.util.Arrays.fill(obs, 100, 110, 0.9);
+    WindowScan.Result res = WindowScan.scan(obs, ref, w, new WindowScan.Grid(0, 1, 10, 1, 2), 3);
+    assertEquals(10, res.observedWithoutReference());
+    // Windows that touch a bin with reference: 5 of width 1 and 5 of width 2 (the one from bin 4 to 5 included).
+    assertEquals(10, res.windowsTried());
+    assertTrue(res.best().hi() <= 0.6 + 1e-12, res.best().toString());
+    assertThrows(IllegalArgumentException.class, () -> WindowScan.scan(new double[] {0.9}, new double[] {0.1},
+        new double[] {1}, new WindowScan.Grid(0.5, 1, 5, 1, 2), 1));
+  }
+
+  @Test
   void badGridsAreRefusedWithTheReason() {
+    assertThrows(IllegalArgumentException.class, () -> new WindowScan.Grid(0, 1, 100_000, 1, 100_000));
     assertThrows(IllegalArgumentException.class, () -> new WindowScan.Grid(1, 1, 10, 1, 2));
     assertThrows(IllegalArgumentException.class, () -> new WindowScan.Grid(0, 1, 10, 3, 2));
     assertThrows(IllegalArgumentException.class, () -> new WindowScan.Grid(0, 1, 10, 1, 11));
