@@ -2,7 +2,6 @@ package triage.shell;
 
 import java.nio.file.Path;
 import java.util.ArrayList;
-import java.util.BitSet;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
@@ -135,13 +134,12 @@ public final class DeriveCommand implements Callable<Integer> {
         result.put("threshold", bestC);
       } else if (method.equals("box")) {
         List<String> use = features;
-        BitSet om = store.mask(base, observed);
-        BitSet rm = store.mask(base, reference);
         List<String> all = m.spec().columns().features();
         if (use == null) {
-          double[][] obsAll = RankCommand.subset(store.columns(observed, all), om);
-          double[][] refAll = RankCommand.subset(store.columns(reference, all), rm);
-          double[] wAll = RankCommand.subset(new double[][] {store.weights(reference)}, rm)[0];
+          double[][] obsAll = store.rows(observed, all, base).columns();
+          EventStore.SelectedRows refRows = store.rows(reference, all, base);
+          double[][] refAll = refRows.columns();
+          double[] wAll = refRows.weights();
           List<FeatureRanking.Row> ranked = FeatureRanking.rank(all, obsAll, refAll, wAll, 0, 1);
           use = ranked.subList(0, Math.min(topFeatures, ranked.size())).stream().map(FeatureRanking.Row::feature)
               .toList();

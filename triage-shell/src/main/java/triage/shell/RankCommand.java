@@ -2,7 +2,6 @@ package triage.shell;
 
 import java.nio.file.Path;
 import java.util.ArrayList;
-import java.util.BitSet;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
@@ -118,12 +117,12 @@ public final class RankCommand implements Callable<Integer> {
       String reference = Roles.name(m, Role.REFERENCE);
       List<String> features = m.spec().columns().features();
       Selection selection = store.where(where);
-      BitSet obsMask = store.mask(selection, observed);
-      if (obsMask.cardinality() < 2) {
-        throw new triage.core.sample.InputException(null, "the selection keeps " + obsMask.cardinality()
+      double[][] obs = store.rows(observed, features, selection).columns();
+      int kept = obs[0].length;
+      if (kept < 2) {
+        throw new triage.core.sample.InputException(null, "the selection keeps " + kept
             + " observed events; ranking needs at least 2");
       }
-      double[][] obs = store.rows(observed, features, selection).columns();
       // Every reference event only for the comparison with all of them; the inside comparison reads the kept ones.
       double[][] refAll = versus != Versus.inside ? store.columns(reference, features) : null;
       double[] wAll = versus != Versus.inside ? store.weights(reference) : null;
@@ -132,10 +131,10 @@ public final class RankCommand implements Callable<Integer> {
       result.put("tool", "triage " + ToolVersion.get());
       result.put("index", index.toString());
       result.put("where", where);
-      result.put("observedEvents", obsMask.cardinality());
+      result.put("observedEvents", kept);
       result.put("permutations", permutations);
       result.put("seed", seed);
-      o.say("selection  %s: %d observed events", where, obsMask.cardinality());
+      o.say("selection  %s: %d observed events", where, kept);
       if (versus != Versus.inside) {
         List<FeatureRanking.Row> rows = sorted(FeatureRanking.rank(features, obs, refAll, wAll, 0, seed));
         print(o, "versus all reference events (" + wAll.length + "): where the selection lives", rows);
@@ -143,17 +142,17 @@ public final class RankCommand implements Callable<Integer> {
         result.put("pairsVersusAll", pairs(o, features, obs, refAll, wAll));
       }
       if (versus != Versus.all) {
-        BitSet refMask = store.mask(selection, reference);
-        if (refMask.cardinality() < 2) {
-          o.say("versus reference inside the selection: only %d reference events, skipped", refMask.cardinality());
+        EventStore.SelectedRows inside = store.rows(reference, features, selection);
+        int refKept = inside.weights().length;
+        if (refKept < 2) {
+          o.say("versus reference inside the selection: only %d reference events, skipped", refKept);
           result.put("versusInside", null);
         } else {
-          EventStore.SelectedRows kept = store.rows(reference, features, selection);
-          double[][] refIn = kept.columns();
-          double[] wIn = kept.weights();
+          double[][] refIn = inside.columns();
+          double[] wIn = inside.weights();
           List<FeatureRanking.Row> rows = sorted(FeatureRanking.rank(features, obs, refIn, wIn, permutations,
               seed));
-          print(o, "versus reference inside the selection (" + refMask.cardinality()
+          print(o, "versus reference inside the selection (" + refKept
               + "): what the selection does not explain", rows);
           result.put("versusInside", rows);
           result.put("pairsVersusInside", pairs(o, features, obs, refIn, wIn));
@@ -234,17 +233,4 @@ public final class RankCommand implements Callable<Integer> {
           r.wasserstein(), r.jensenShannon(), r.ksAsymptoticP(), r.rawP(), r.adjustedP());
     }
   }
-
-  static double[][] subset(double[][] columns, BitSet mask) {
-    int n = mask.cardinality();
-    double[][] out = new double[columns.length][n];
-    for (int f = 0; f < columns.length; f++) {
-      int k = 0;
-      for (int i = mask.nextSetBit(0); i >= 0; i = mask.nextSetBit(i + 1)) {
-        out[f][k++] = columns[f][i];
-      }
-    }
-    return out;
-  }
-
 }

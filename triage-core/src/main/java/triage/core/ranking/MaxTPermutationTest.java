@@ -213,19 +213,9 @@ public final class MaxTPermutationTest {
         }
         max = Math.max(max, tb);
       }
-      for (int f = 0; f < nf; f++) {
-        if (max >= threshold[f]) {
-          maxCount[f]++;
-        }
-      }
+      countMax(max, threshold, maxCount);
     }
-    final double[] raw = new double[nf];
-    final double[] adj = new double[nf];
-    for (int f = 0; f < nf; f++) {
-      raw[f] = (rawCount[f] + 1.0) / (permutations + 1.0);
-      adj[f] = (maxCount[f] + 1.0) / (permutations + 1.0);
-    }
-    return new Result(t, raw, adj, permutations);
+    return result(t, rawCount, maxCount);
   }
 
   /**
@@ -365,21 +355,33 @@ public final class MaxTPermutationTest {
         for (int k = 0; k < workers; k++) {
           max = Math.max(max, maxOf[k][b]);
         }
-        for (int f = 0; f < nf; f++) {
-          if (max >= threshold[f]) {
-            maxCount[f]++;
-          }
-        }
+        countMax(max, threshold, maxCount);
       }
     }
-    final double[] raw = new double[nf];
-    final double[] adj = new double[nf];
-    for (int f = 0; f < nf; f++) {
-      long r = 0;
-      for (int k = 0; k < workers; k++) {
-        r += rawCount[k][f];
+    final long[] raw = new long[nf];
+    for (int k = 0; k < workers; k++) {
+      for (int f = 0; f < nf; f++) {
+        raw[f] += rawCount[k][f];
       }
-      raw[f] = (r + 1.0) / (permutations + 1.0);
+    }
+    return result(t, raw, maxCount);
+  }
+
+  /** Counts, for every feature, whether a permutation's largest statistic reaches its observed one. */
+  private static void countMax(double max, double[] threshold, long[] maxCount) {
+    for (int f = 0; f < threshold.length; f++) {
+      if (max >= threshold[f]) {
+        maxCount[f]++;
+      }
+    }
+  }
+
+  /** The p-values {@code (k + 1)/(B + 1)} from the raw and maximum counts. */
+  private Result result(double[] t, long[] rawCount, long[] maxCount) {
+    final double[] raw = new double[t.length];
+    final double[] adj = new double[t.length];
+    for (int f = 0; f < t.length; f++) {
+      raw[f] = (rawCount[f] + 1.0) / (permutations + 1.0);
       adj[f] = (maxCount[f] + 1.0) / (permutations + 1.0);
     }
     return new Result(t, raw, adj, permutations);
