@@ -45,9 +45,27 @@ public final class FitBenchmark {
     run(System.out, threads, nRef, nObs, epochs, maxIterations, starts);
   }
 
+  /**
+   * The benchmarks' weighted N(0, I_d) reference sample of {@code n} events (see
+   * {@link SyntheticData}): {features feature-major, weights}.
+   */
+  public static double[][] gaussianReference(int d, int n, long seed) {
+    return SyntheticData.gaussianReference(d, n, new SplitMix64(seed));
+  }
+
   /** Runs every case and prints the figures to {@code out}. */
   public static void run(PrintStream out, int threads, int nRef, int nObs, int adamEpochs,
               int maxIterations, int starts) {
+    run(out, threads, nRef, nObs, adamEpochs, maxIterations, starts, null);
+  }
+
+  /**
+   * Runs every case, prints the figures, and with {@code exportDir} not null writes each case's
+   * training problem and this engine's L-BFGS trajectory there for a side-by-side run of the same
+   * fit in another framework ({@link FrameworkExport}).
+   */
+  public static void run(PrintStream out, int threads, int nRef, int nObs, int adamEpochs,
+              int maxIterations, int starts, java.nio.file.Path exportDir) {
     out.printf(Locale.ROOT, "FitBenchmark: threads=%d nRef=%d nObs=%d adamEpochs=%d kernel=%s%n",
         threads, nRef, nObs, adamEpochs, Kernels.select(KernelChoice.AUTO).name());
     warmUp(threads);
@@ -59,11 +77,11 @@ public final class FitBenchmark {
     }
     int bump = Math.max(1, nObs / 50);
     runCase(out, "1D", SyntheticData.exponentialBump(nRef, nObs, bump, 4.0, 0.16, 101L),
-        threads, adamEpochs, maxIterations, starts, probe);
+        threads, adamEpochs, maxIterations, starts, probe, exportDir);
     runCase(out, "2D", SyntheticData.gaussianBump(new double[] {1.5, 0.0}, 0.25, nRef, nObs,
-        bump, 202L), threads, adamEpochs, maxIterations, starts, probe);
+        bump, 202L), threads, adamEpochs, maxIterations, starts, probe, exportDir);
     runCase(out, "5D", SyntheticData.gaussianBump(new double[] {1.5, 0.0, 0.0, 0.0, 0.0}, 0.25,
-        nRef, nObs, bump, 505L), threads, adamEpochs, maxIterations, starts, probe);
+        nRef, nObs, bump, 505L), threads, adamEpochs, maxIterations, starts, probe, exportDir);
   }
 
   private static void warmUp(int threads) {
@@ -76,7 +94,8 @@ public final class FitBenchmark {
   }
 
   private static void runCase(PrintStream out, String name, TrainingData data, int threads,
-                int adamEpochs, int maxIterations, int starts, double[] probe) {
+                int adamEpochs, int maxIterations, int starts, double[] probe,
+                java.nio.file.Path exportDir) {
     FitSettings base = FitSettings.defaults().withThreads(threads).withHiddenWidths(List.of(5, 5))
         .withClip(9.0).withSeed(1L)
         .withStoppingRule(StoppingRule.defaults().withMaxIterations(maxIterations));
@@ -107,7 +126,8 @@ public final class FitBenchmark {
       out.printf(Locale.ROOT, "  arithmetic limit: %d exp + %d div + %d other ops per event -> %.3f ms per evaluation;"
           + " achieved/limit = %.2f%n", h + 1, h, ops, limit * 1e3, vectorEval / limit);
     }
-    FitResult lb = RatioTrainer.fit(data, base);
+    FrameworkExport.Trajectory trajectory = new FrameworkExport.Trajectory();
+    FitResult lb = RatioTrainer.fit(data, base, trajectory);
     double lbSeconds = lb.elapsedSeconds();
     out.printf(Locale.ROOT, "  loss at L-BFGS iteration (log): %s%n", progress(lb.log()));
     out.printf(Locale.ROOT, "  projected L-BFGS: %.3f s, %d iterations, %d evaluations (%.3f ms each), t = %.4f,"
@@ -115,6 +135,14 @@ public final class FitBenchmark {
         lbSeconds, lb.iterations(), lb.lossEvaluations(), lbSeconds / lb.lossEvaluations() * 1e3,
         lb.testStatistic(), lb.finalLoss(), lb.converged(), lb.stopReason(),
         lb.starts().get(0).projectedGradientNorm());
+    if (exportDir != null) {
+      try {
+        FrameworkExport.write(exportDir, name, data, base, lb, trajectory);
+      } catch (java.io.IOException e) {
+        throw new java.io.UncheckedIOException(e);
+      }
+      out.printf(Locale.ROOT, "  exported the %s problem and trajectory to %s%n", name, exportDir);
+    }
     if (starts > 1) {
       FitResult lb4 = RatioTrainer.fit(data, base.withRestarts(starts));
       out.printf(Locale.ROOT, "  projected L-BFGS, %d starts: %.3f s, %d evaluations, best t = %.4f, start losses %s%n",

@@ -25,7 +25,8 @@ import triage.shell.VersionProvider;
 /** {@code triage bench}: benchmarks that print figures. */
 @Command(name = "bench", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
     description = "Benchmarks on generated data; they print figures (run them on a quiet machine).",
-    subcommands = {BenchCommand.IngestBench.class, BenchCommand.SelectBench.class, BenchCommand.FitBench.class}, footer = ExitCodes.FOOTER)
+    subcommands = {BenchCommand.IngestBench.class, BenchCommand.SelectBench.class, BenchCommand.FitBench.class,
+        BenchCommand.CalibrateBench.class}, footer = ExitCodes.FOOTER)
 public final class BenchCommand implements Runnable {
   /** Filled by picocli. */
   @CommandLine.Spec
@@ -284,9 +285,52 @@ public final class BenchCommand implements Runnable {
         description = "Random starts of the extra multi-start fit (default: ${DEFAULT-VALUE}; 1 skips it).")
     int starts;
 
+    /** Export folder. */
+    @Option(names = "--export", paramLabel = "DIR",
+        description = "Also write each case's training problem and the L-BFGS trajectory to DIR, for the same fit "
+            + "run side by side in a general deep-learning framework (bench/framework/fit_torch.py).")
+    Path export;
+
     @Override
     public Integer call() {
-      triage.core.ratio.FitBenchmark.run(System.out, threads, reference, observed, epochs, maxIterations, starts);
+      triage.core.ratio.FitBenchmark.run(System.out, threads, reference, observed, epochs, maxIterations, starts,
+          export);
+      return ExitCodes.OK;
+    }
+  }
+
+  /** {@code triage bench calibrate}. */
+  @Command(name = "calibrate", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
+      description = {"Null toys of a calibration at 5D (weighted N(0, I) reference, d-5-5-1 sigmoid, clip 9, the "
+          + "default stopping rule): seconds, iterations and t per toy, and the wall time that projects for 1,000 "
+          + "toys."})
+  static final class CalibrateBench implements Callable<Integer> {
+    /** Threads. */
+    @Option(names = "--threads", defaultValue = "2", paramLabel = "N", description = "Threads (default: ${DEFAULT-VALUE}).")
+    int threads;
+
+    /** Reference events. */
+    @Option(names = "--reference", defaultValue = "200000", paramLabel = "N",
+        description = "Reference events (default: ${DEFAULT-VALUE}).")
+    int reference;
+
+    /** Expected observed events. */
+    @Option(names = "--observed", defaultValue = "2000", paramLabel = "N",
+        description = "Expected observed events per toy (default: ${DEFAULT-VALUE}).")
+    int observed;
+
+    /** Features. */
+    @Option(names = "--features", defaultValue = "5", paramLabel = "D",
+        description = "Features (default: ${DEFAULT-VALUE}).")
+    int features;
+
+    /** Toys. */
+    @Option(names = "--toys", defaultValue = "5", paramLabel = "N", description = "Toys (default: ${DEFAULT-VALUE}).")
+    int toys;
+
+    @Override
+    public Integer call() throws IOException {
+      triage.core.calibration.CalibrationBenchmark.run(System.out, threads, reference, observed, features, toys);
       return ExitCodes.OK;
     }
   }
