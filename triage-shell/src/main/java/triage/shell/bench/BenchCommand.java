@@ -250,12 +250,8 @@ public final class BenchCommand implements Runnable {
         (t2 - t1) / 1e6);
   }
 
-  /** {@code triage bench fit}. */
-  @Command(name = "fit", mixinStandardHelpOptions = true,
-      description = {"Ratio-model fits on generated 1D, 2D and 5D data (d-5-5-1 sigmoid, clip 9): seconds per fit "
-          + "to the stopping rule, loss evaluations, t, events·parameters per second per evaluation against the "
-          + "machine's measured arithmetic limit, and Adam at a fixed epoch count."})
-  static final class FitBench implements Callable<Integer> {
+  /** Threads and sample sizes of the fit and calibration benchmarks. */
+  static final class FitSizes {
     /** Threads. */
     @Option(names = "--threads", defaultValue = "2", paramLabel = "N", description = "Threads (default: ${DEFAULT-VALUE}).")
     int threads;
@@ -265,10 +261,21 @@ public final class BenchCommand implements Runnable {
         description = "Reference events (default: ${DEFAULT-VALUE}).")
     int reference;
 
-    /** Observed events. */
+    /** Observed events (expected per toy in a calibration). */
     @Option(names = "--observed", defaultValue = "2000", paramLabel = "N",
-        description = "Observed events (default: ${DEFAULT-VALUE}).")
+        description = "Observed events, or expected per toy (default: ${DEFAULT-VALUE}).")
     int observed;
+  }
+
+  /** {@code triage bench fit}. */
+  @Command(name = "fit", mixinStandardHelpOptions = true,
+      description = {"Ratio-model fits on generated 1D, 2D and 5D data (d-5-5-1 sigmoid, clip 9): seconds per fit "
+          + "to the stopping rule, loss evaluations, t, events·parameters per second per evaluation against the "
+          + "machine's measured arithmetic limit, and Adam at a fixed epoch count."})
+  static final class FitBench implements Callable<Integer> {
+    /** Threads and sample sizes. */
+    @CommandLine.Mixin
+    FitSizes sizes;
 
     /** Adam epochs. */
     @Option(names = "--epochs", defaultValue = "2000", paramLabel = "N",
@@ -293,8 +300,8 @@ public final class BenchCommand implements Runnable {
 
     @Override
     public Integer call() {
-      triage.core.ratio.FitBenchmark.run(System.out, threads, reference, observed, epochs, maxIterations, starts,
-          export);
+      triage.core.ratio.FitBenchmark.run(System.out, sizes.threads, sizes.reference, sizes.observed, epochs,
+          maxIterations, starts, export);
       return ExitCodes.OK;
     }
   }
@@ -305,19 +312,9 @@ public final class BenchCommand implements Runnable {
           + "default stopping rule): seconds, iterations and t per toy, and the wall time that projects for 1,000 "
           + "toys."})
   static final class CalibrateBench implements Callable<Integer> {
-    /** Threads. */
-    @Option(names = "--threads", defaultValue = "2", paramLabel = "N", description = "Threads (default: ${DEFAULT-VALUE}).")
-    int threads;
-
-    /** Reference events. */
-    @Option(names = "--reference", defaultValue = "200000", paramLabel = "N",
-        description = "Reference events (default: ${DEFAULT-VALUE}).")
-    int reference;
-
-    /** Expected observed events. */
-    @Option(names = "--observed", defaultValue = "2000", paramLabel = "N",
-        description = "Expected observed events per toy (default: ${DEFAULT-VALUE}).")
-    int observed;
+    /** Threads and sample sizes. */
+    @CommandLine.Mixin
+    FitSizes sizes;
 
     /** Features. */
     @Option(names = "--features", defaultValue = "5", paramLabel = "D",
@@ -330,7 +327,8 @@ public final class BenchCommand implements Runnable {
 
     @Override
     public Integer call() throws IOException {
-      triage.core.calibration.CalibrationBenchmark.run(System.out, threads, reference, observed, features, toys);
+      triage.core.calibration.CalibrationBenchmark.run(System.out, sizes.threads, sizes.reference, sizes.observed,
+          features, toys);
       return ExitCodes.OK;
     }
   }
