@@ -1,5 +1,6 @@
 package triage.index;
 
+import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -51,7 +52,7 @@ class OpenErrorsTest {
     Path index = dir.resolve("future");
     TestSamples.write(dir.resolve("data"), 50, 5, 1, false);
     Ingest.run(TestSamples.spec(dir.resolve("data")), index, Ingest.Options.defaults(), null);
-    String manifest = Files.readString(index.resolve("manifest.json")).replace("triage-index/1", "triage-index/9");
+    String manifest = Files.readString(index.resolve("manifest.json")).replace(Manifest.FORMAT, "triage-index/9");
     IndexWriterConfig config = new IndexWriterConfig().setOpenMode(IndexWriterConfig.OpenMode.APPEND);
     try (FSDirectory d = FSDirectory.open(index); IndexWriter w = new IndexWriter(d, config)) {
       w.setLiveCommitData(Map.of("triage.manifest", manifest).entrySet());
@@ -59,6 +60,31 @@ class OpenErrorsTest {
     }
     String message = openFails(index);
     assertTrue(message.contains("'triage-index/9' is not known to this version"), message);
+  }
+
+  /**
+   * Format 1 differed only by a stored copy of each event's binary form, which is no longer read: an index whose
+   * commit says format 1 opens and its events are fetched by id from the doc values.
+   */
+  @Test
+  void formatOneStillOpens() throws IOException {
+    Path index = dir.resolve("format1");
+    TestSamples.write(dir.resolve("data"), 50, 5, 1, false);
+    Ingest.run(TestSamples.spec(dir.resolve("data")), index, Ingest.Options.defaults(), null);
+    String manifest = Files.readString(index.resolve("manifest.json")).replace(Manifest.FORMAT, "triage-index/1");
+    IndexWriterConfig config = new IndexWriterConfig().setOpenMode(IndexWriterConfig.OpenMode.APPEND);
+    try (FSDirectory d = FSDirectory.open(index); IndexWriter w = new IndexWriter(d, config)) {
+      w.setLiveCommitData(Map.of("triage.manifest", manifest).entrySet());
+      w.commit();
+    }
+    try (EventStore store = EventStore.open(index)) {
+      assertEquals("triage-index/1", store.manifest().format());
+      for (TestSamples.Row r : TestSamples.bruteForce(dir.resolve("data"))) {
+        EventRecord e = store.event(r.sample(), r.id()).orElseThrow();
+        assertEquals(Double.doubleToRawLongBits(r.x()[0]), Double.doubleToRawLongBits(e.numbers().get("a")));
+        assertEquals(r.sector(), e.categories().get("sector"));
+      }
+    }
   }
 
   @Test

@@ -3,15 +3,16 @@ package triage.index.impl;
 /**
  * Lucene field names. Each event is one document with: a {@code DoublePoint} per feature (and for an external
  * score), {@code LongPoint}s for the id and run, a {@code StringField} per category, and the event's
- * {@link Layout binary form} twice, as binary doc values (for sums and histograms) and as a stored field (for
- * fetching by id). Other columns (block, variation weights) are selected by reading the binary form.
+ * {@link Layout binary form} once, as binary doc values (read by sums, histograms, column scans and fetching by
+ * id; index format 1 also kept it as a stored field, which is no longer written or read). Other columns (block,
+ * variation weights) are selected by reading the binary form.
  *
  * <p>Why so few fields: Lucene's cost per indexed field and event dominates ingest (measured: about 0.6 µs per
  * point value to build the BKD trees, a similar cost per numeric doc-values field), so every value lives once
  * in the binary form and only the columns that box selections use most get points.
  */
 final class Fields {
-  /** The event's binary form (binary doc values and stored field). */
+  /** The event's binary form (binary doc values). */
   static final String EVENT = "_event";
 
   /** Commit user-data key holding the manifest JSON. */

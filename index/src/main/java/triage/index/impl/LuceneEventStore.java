@@ -38,6 +38,7 @@ import org.apache.lucene.index.IndexNotFoundException;
 import org.apache.lucene.index.IndexWriter;
 import org.apache.lucene.index.IndexWriterConfig;
 import org.apache.lucene.index.LeafReaderContext;
+import org.apache.lucene.index.ReaderUtil;
 import org.apache.lucene.search.BooleanClause;
 import org.apache.lucene.search.BooleanQuery;
 import org.apache.lucene.search.DocIdSetIterator;
@@ -672,9 +673,15 @@ public final class LuceneEventStore implements EventStore {
     var c = manifest.spec().columns();
     TopDocs top = searcher.search(LongPoint.newExactQuery(Fields.point(c.id()), id), 1000);
     byte[] found = null;
+    List<LeafReaderContext> leaves = searcher.getIndexReader().leaves();
     for (ScoreDoc hit : top.scoreDocs) {
-      BytesRef bytes = searcher.storedFields().document(hit.doc).getBinaryValue(Fields.EVENT);
-      byte[] b = BytesRef.deepCopyOf(bytes).bytes;
+      // The binary form is read from the doc values (format 1 also stored it as a stored field, no longer read).
+      LeafReaderContext leaf = leaves.get(ReaderUtil.subIndex(hit.doc, leaves));
+      BinaryDocValues events = DocValues.getBinary(leaf.reader(), Fields.EVENT);
+      if (!events.advanceExact(hit.doc - leaf.docBase)) {
+        throw new IndexException(dir, "is damaged: an event of id " + id + " has no binary form");
+      }
+      byte[] b = BytesRef.deepCopyOf(events.binaryValue()).bytes;
       if (Layout.getInt(b, Layout.SAMPLE) == ordinal) {
         if (found != null) {
           throw new IndexException(dir, "is damaged: sample '" + sample + "' holds id " + id + " twice");
