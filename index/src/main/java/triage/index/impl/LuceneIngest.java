@@ -336,7 +336,33 @@ public final class LuceneIngest {
       rethrow();
     }
 
+    /**
+     * Waits for every batch, then writes the buffered events to segments on every indexing thread at once
+     * ({@code flushNextBuffer} takes one buffer per call), so the commit that follows finds little left to write:
+     * a commit flushes the buffers one after another on the calling thread, which left one core idle while the
+     * last quarter of the work (the points build of the buffered events) was done.
+     */
     void finish() throws IOException {
+      awaitQuiet();
+      for (int t = 0; t < permits / 2; t++) {
+        try {
+          inFlight.acquire();
+        } catch (InterruptedException e) {
+          Thread.currentThread().interrupt();
+          throw new IOException("interrupted", e);
+        }
+        pool.execute(() -> {
+          try {
+            while (writer.flushNextBuffer()) {
+              // one buffer per call
+            }
+          } catch (Throwable e) {
+            failure.compareAndSet(null, e);
+          } finally {
+            inFlight.release();
+          }
+        });
+      }
       awaitQuiet();
       pool.shutdown();
     }
