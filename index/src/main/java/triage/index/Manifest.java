@@ -30,10 +30,16 @@ import triage.core.sample.SampleSpec;
 public record Manifest(String format, String indexId, String tool, String created, SampleSpec spec,
     List<Column> columns, List<Sample> samples, List<Model> models) {
 
-  /** The index format this version writes: each event's binary form kept once, as binary doc values. */
+  /**
+   * The index format this version writes: each event's binary form kept once, as binary doc values, and float
+   * points (checked exactly against the binary form) for double columns.
+   */
   public static final String FORMAT = "triage-index/2";
 
-  /** The formats this version reads: 1 also kept the binary form as a stored field, which is no longer read. */
+  /**
+   * The formats this version reads: 1 had double points and also kept the binary form as a stored field (no
+   * longer read).
+   */
   public static final List<String> READABLE = List.of("triage-index/1", FORMAT);
 
   /** Reads and writes manifests; tolerant of fields added by later minor versions. */

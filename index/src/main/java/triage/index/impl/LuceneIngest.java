@@ -24,7 +24,7 @@ import java.util.function.Consumer;
 import org.apache.commons.csv.CSVFormat;
 import org.apache.commons.csv.CSVPrinter;
 import org.apache.lucene.document.BinaryDocValuesField;
-import org.apache.lucene.document.DoublePoint;
+import org.apache.lucene.document.FloatPoint;
 import org.apache.lucene.document.Field;
 import org.apache.lucene.document.LongPoint;
 import org.apache.lucene.document.StringField;
@@ -398,10 +398,10 @@ public final class LuceneIngest {
       Columns c = spec.columns();
       List<String> features = c.features();
       List<String> categories = c.categories();
-      DoublePoint[] points = new DoublePoint[features.size()];
+      FloatPoint[] points = new FloatPoint[features.size()];
       List<IndexableField> fields = new ArrayList<>();
       for (int k = 0; k < points.length; k++) {
-        points[k] = new DoublePoint(Fields.point(features.get(k)), 0.0);
+        points[k] = new FloatPoint(Fields.point(features.get(k)), 0f);
         fields.add(points[k]);
       }
       LongPoint id = new LongPoint(Fields.point(c.id()), 0L);
@@ -410,7 +410,7 @@ public final class LuceneIngest {
       if (run != null) {
         fields.add(run);
       }
-      DoublePoint score = b.hasScore() ? new DoublePoint(Fields.point(c.score()), 0.0) : null;
+      FloatPoint score = b.hasScore() ? new FloatPoint(Fields.point(c.score()), 0f) : null;
       if (score != null) {
         fields.add(score);
       }
@@ -437,14 +437,15 @@ public final class LuceneIngest {
             throw new NoSuchElementException();
           }
           for (int k = 0; k < points.length; k++) {
-            points[k].setDoubleValue(b.feature(i, k));
+            // Float points find candidates; selections check the exact double in the binary form.
+            points[k].setFloatValue((float) b.feature(i, k));
           }
           id.setLongValue(b.id(i));
           if (run != null) {
             run.setLongValue(b.run(i));
           }
           if (score != null) {
-            score.setDoubleValue(b.score(i));
+            score.setFloatValue((float) b.score(i));
           }
           for (int k = 0; k < labels.length; k++) {
             labels[k].setStringValue(b.category(i, k));
