@@ -60,6 +60,11 @@ public final class Ingest {
       return new Options(read, replace, file, threads, ramBufferMb);
     }
 
+    /** The same options with another RAM buffer (MB). */
+    public Options withRamBufferMb(double mb) {
+      return new Options(read, replace, rejectsFile, threads, mb);
+    }
+
     /** The same options with another number of indexing threads. */
     public Options withThreads(int n) {
       return new Options(read, replace, rejectsFile, n, ramBufferMb);

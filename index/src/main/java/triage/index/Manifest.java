@@ -16,7 +16,8 @@ import triage.core.sample.SampleSpec;
  * input fingerprints, the tool and format versions, and the model versions whose scores it carries.
  * Its fields are listed in {@code docs/json.md}.
  *
- * @param format the index format, {@value #FORMAT}
+ * @param format the index format: {@value #FORMAT} when written by this version, or an older one it still reads
+ *     ({@link #READABLE})
  * @param indexId a random id fixed at ingest
  * @param tool the tool and version that wrote the index
  * @param created when the ingest finished (ISO-8601, UTC)
@@ -29,8 +30,17 @@ import triage.core.sample.SampleSpec;
 public record Manifest(String format, String indexId, String tool, String created, SampleSpec spec,
     List<Column> columns, List<Sample> samples, List<Model> models) {
 
-  /** The only index format this version reads. */
-  public static final String FORMAT = "triage-index/1";
+  /**
+   * The index format this version writes: each event's binary form kept once, as binary doc values, and float
+   * points (checked exactly against the binary form) for double columns.
+   */
+  public static final String FORMAT = "triage-index/2";
+
+  /**
+   * The formats this version reads: 1 had double points and also kept the binary form as a stored field (no
+   * longer read).
+   */
+  public static final List<String> READABLE = List.of("triage-index/1", FORMAT);
 
   /** Reads and writes manifests; tolerant of fields added by later minor versions. */
   static final ObjectMapper MAPPER = new ObjectMapper()
@@ -112,9 +122,9 @@ public record Manifest(String format, String indexId, String tool, String create
 
   /** Checks the format and fills empty lists. */
   public Manifest {
-    if (!FORMAT.equals(format)) {
+    if (!READABLE.contains(format)) {
       throw new IllegalArgumentException("index format '" + format + "' is not known to this version (it reads '"
-          + FORMAT + "')");
+          + String.join("', '", READABLE) + "')");
     }
     columns = List.copyOf(columns);
     samples = List.copyOf(samples);

@@ -1,5 +1,6 @@
 package triage.index;
 
+import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -7,6 +8,8 @@ import java.io.IOException;
 import java.io.RandomAccessFile;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
 import java.util.Map;
 import java.util.stream.Stream;
 import org.apache.lucene.document.Document;
@@ -51,7 +54,7 @@ class OpenErrorsTest {
     Path index = dir.resolve("future");
     TestSamples.write(dir.resolve("data"), 50, 5, 1, false);
     Ingest.run(TestSamples.spec(dir.resolve("data")), index, Ingest.Options.defaults(), null);
-    String manifest = Files.readString(index.resolve("manifest.json")).replace("triage-index/1", "triage-index/9");
+    String manifest = Files.readString(index.resolve("manifest.json")).replace(Manifest.FORMAT, "triage-index/9");
     IndexWriterConfig config = new IndexWriterConfig().setOpenMode(IndexWriterConfig.OpenMode.APPEND);
     try (FSDirectory d = FSDirectory.open(index); IndexWriter w = new IndexWriter(d, config)) {
       w.setLiveCommitData(Map.of("triage.manifest", manifest).entrySet());
@@ -59,6 +62,55 @@ class OpenErrorsTest {
     }
     String message = openFails(index);
     assertTrue(message.contains("'triage-index/9' is not known to this version"), message);
+  }
+
+  /**
+   * An index of format 1 (double points and a stored copy of each event's binary form), made by the previous
+   * version from the fixture files ({@code format1/generate.py} says how), still opens: events fetched by id
+   * carry the input values bit for bit, and box selections count as a brute-force pass over the files does.
+   */
+  @Test
+  void formatOneStillOpens() throws IOException, java.net.URISyntaxException {
+    Path fixture = Path.of(getClass().getResource("format1").toURI());
+    Path index = dir.resolve("format1");
+    Files.createDirectories(index);
+    try (Stream<Path> files = Files.list(fixture.resolve("index"))) {
+      for (Path f : files.toList()) {
+        Files.copy(f, index.resolve(f.getFileName()));
+      }
+    }
+    record Event(String sample, long id, double a, double b, String sector) {}
+    List<Event> events = new ArrayList<>();
+    for (String[] f : rows(fixture.resolve("ref.csv"), ",")) {
+      events.add(new Event("reference", Long.parseLong(f[0]), Double.parseDouble(f[4]), Double.parseDouble(f[5]),
+          f[3]));
+    }
+    for (String[] f : rows(fixture.resolve("obs.tsv"), "\t")) {
+      events.add(new Event("observed", Long.parseLong(f[0]), Double.parseDouble(f[4]), Double.parseDouble(f[5]),
+          f[3]));
+    }
+    try (EventStore store = EventStore.open(index)) {
+      assertEquals("triage-index/1", store.manifest().format());
+      assertEquals(90, events.size());
+      for (Event e : events) {
+        EventRecord r = store.event(e.sample(), e.id()).orElseThrow();
+        assertEquals(Double.doubleToRawLongBits(e.a()), Double.doubleToRawLongBits(r.numbers().get("a")));
+        assertEquals(Double.doubleToRawLongBits(e.b()), Double.doubleToRawLongBits(r.numbers().get("b")));
+        assertEquals(e.sector(), r.categories().get("sector"));
+      }
+      for (double lo : new double[] {-1, 0, 0.5}) {
+        Selection box = Selection.all().and(new Selection.Range("a", lo, lo + 1.5))
+            .and(new Selection.Range("b", 2, 20));
+        long expected = events.stream().filter(e -> e.a() >= lo && e.a() <= lo + 1.5 && e.b() >= 2 && e.b() <= 20)
+            .count();
+        assertEquals(expected, store.sums(box).stream().mapToLong(SampleSums::count).sum());
+      }
+    }
+  }
+
+  private static List<String[]> rows(Path file, String delimiter) throws IOException {
+    List<String> lines = Files.readAllLines(file);
+    return lines.subList(1, lines.size()).stream().map(l -> l.split(delimiter)).toList();
   }
 
   @Test

@@ -12,9 +12,9 @@ import triage.core.sample.SampleSpec;
 import triage.core.sample.Variation;
 
 /**
- * The fixed-length binary form of one event, kept both as binary doc values (read by sums and histograms) and as
- * a stored field (read when fetching an event by id). All numbers are little-endian; doubles keep their raw
- * IEEE-754 bits, so values read back bit-exact.
+ * The fixed-length binary form of one event, kept as binary doc values (read by sums, histograms, column scans and
+ * when fetching an event by id). All numbers are little-endian; doubles keep their raw IEEE-754 bits, so values
+ * read back bit-exact.
  *
  * <pre>
  * offset  size       content

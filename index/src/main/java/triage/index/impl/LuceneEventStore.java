@@ -27,6 +27,7 @@ import java.util.Set;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.stream.IntStream;
 import org.apache.lucene.document.DoublePoint;
+import org.apache.lucene.document.FloatPoint;
 import org.apache.lucene.document.LongPoint;
 import org.apache.lucene.index.BinaryDocValues;
 import org.apache.lucene.index.CorruptIndexException;
@@ -38,6 +39,7 @@ import org.apache.lucene.index.IndexNotFoundException;
 import org.apache.lucene.index.IndexWriter;
 import org.apache.lucene.index.IndexWriterConfig;
 import org.apache.lucene.index.LeafReaderContext;
+import org.apache.lucene.index.ReaderUtil;
 import org.apache.lucene.search.BooleanClause;
 import org.apache.lucene.search.BooleanQuery;
 import org.apache.lucene.search.DocIdSetIterator;
@@ -110,6 +112,9 @@ public final class LuceneEventStore implements EventStore {
   /** The binary form of events in this index. */
   private final Layout layout;
 
+  /** Whether double columns have double points (format 1) rather than float points checked exactly (format 2). */
+  private final boolean doublePoints;
+
   /** Loaded score arrays by version. */
   private final Map<String, double[]> scoreCache = new ConcurrentHashMap<>();
 
@@ -120,6 +125,7 @@ public final class LuceneEventStore implements EventStore {
     this.searcher = new IndexSearcher(reader);
     this.manifest = manifest;
     this.layout = new Layout(manifest.spec());
+    this.doublePoints = Fields.hasDoublePoints(manifest.format());
   }
 
   /** See {@link EventStore#open}. */
@@ -395,8 +401,16 @@ public final class LuceneEventStore implements EventStore {
           return new Compiled(new MatchNoDocsQuery(), samples, residuals, null, null, null);
         }
         b.add(LongPoint.newRangeQuery(Fields.point(column), lo, hi), BooleanClause.Occur.FILTER);
-      } else {
+      } else if (doublePoints) {
         b.add(DoublePoint.newRangeQuery(Fields.point(column), r.lo(), r.hi()), BooleanClause.Occur.FILTER);
+      } else {
+        // Rounding to float is monotone, so x in [lo, hi] implies (float) x in [(float) lo, (float) hi]: the float
+        // points find a superset (a few more events at the edges), the exact check on the binary form keeps the
+        // events whose double value is in the range. Signed zeros come out as with double points: the points
+        // order -0 before +0 and the float of a zero keeps its sign.
+        b.add(FloatPoint.newRangeQuery(Fields.point(column), (float) r.lo(), (float) r.hi()),
+            BooleanClause.Occur.FILTER);
+        residuals.add(new Residual(p, null, r.lo(), r.hi()));
       }
       clauses++;
     }
@@ -672,9 +686,15 @@ public final class LuceneEventStore implements EventStore {
     var c = manifest.spec().columns();
     TopDocs top = searcher.search(LongPoint.newExactQuery(Fields.point(c.id()), id), 1000);
     byte[] found = null;
+    List<LeafReaderContext> leaves = searcher.getIndexReader().leaves();
     for (ScoreDoc hit : top.scoreDocs) {
-      BytesRef bytes = searcher.storedFields().document(hit.doc).getBinaryValue(Fields.EVENT);
-      byte[] b = BytesRef.deepCopyOf(bytes).bytes;
+      // The binary form is read from the doc values (format 1 also stored it as a stored field, no longer read).
+      LeafReaderContext leaf = leaves.get(ReaderUtil.subIndex(hit.doc, leaves));
+      BinaryDocValues events = DocValues.getBinary(leaf.reader(), Fields.EVENT);
+      if (!events.advanceExact(hit.doc - leaf.docBase)) {
+        throw new IndexException(dir, "is damaged: an event of id " + id + " has no binary form");
+      }
+      byte[] b = BytesRef.deepCopyOf(events.binaryValue()).bytes;
       if (Layout.getInt(b, Layout.SAMPLE) == ordinal) {
         if (found != null) {
           throw new IndexException(dir, "is damaged: sample '" + sample + "' holds id " + id + " twice");

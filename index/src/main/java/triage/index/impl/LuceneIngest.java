@@ -8,9 +8,11 @@ import java.nio.file.Path;
 import java.time.Instant;
 import java.time.temporal.ChronoUnit;
 import java.util.ArrayList;
+import java.util.Iterator;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
+import java.util.NoSuchElementException;
 import java.util.UUID;
 import java.util.concurrent.ExecutorService;
 import java.util.concurrent.Executors;
@@ -21,15 +23,14 @@ import java.util.concurrent.atomic.AtomicReference;
 import java.util.function.Consumer;
 import org.apache.commons.csv.CSVFormat;
 import org.apache.commons.csv.CSVPrinter;
-import org.apache.lucene.document.Document;
 import org.apache.lucene.document.BinaryDocValuesField;
-import org.apache.lucene.document.DoublePoint;
+import org.apache.lucene.document.FloatPoint;
 import org.apache.lucene.document.Field;
 import org.apache.lucene.document.LongPoint;
-import org.apache.lucene.document.StoredField;
 import org.apache.lucene.document.StringField;
 import org.apache.lucene.index.DirectoryReader;
 import org.apache.lucene.index.IndexWriter;
+import org.apache.lucene.index.IndexableField;
 import org.apache.lucene.index.IndexWriterConfig;
 import org.apache.lucene.index.NoMergePolicy;
 import org.apache.lucene.store.FSDirectory;
@@ -335,7 +336,33 @@ public final class LuceneIngest {
       rethrow();
     }
 
+    /**
+     * Waits for every batch, then writes the buffered events to segments on every indexing thread at once
+     * ({@code flushNextBuffer} takes one buffer per call), so the commit that follows finds little left to write:
+     * a commit flushes the buffers one after another on the calling thread, which left one core idle while the
+     * last quarter of the work (the points build of the buffered events) was done.
+     */
     void finish() throws IOException {
+      awaitQuiet();
+      for (int t = 0; t < permits / 2; t++) {
+        try {
+          inFlight.acquire();
+        } catch (InterruptedException e) {
+          Thread.currentThread().interrupt();
+          throw new IOException("interrupted", e);
+        }
+        pool.execute(() -> {
+          try {
+            while (writer.flushNextBuffer()) {
+              // one buffer per call
+            }
+          } catch (Throwable e) {
+            failure.compareAndSet(null, e);
+          } finally {
+            inFlight.release();
+          }
+        });
+      }
       awaitQuiet();
       pool.shutdown();
     }
@@ -362,34 +389,73 @@ public final class LuceneIngest {
       }
     }
 
-    private List<Document> documents(int ordinal, EventBatch b, long firstRow) {
+    /**
+     * The batch's events as documents, made one at a time as the writer asks for them: one set of field objects
+     * is refilled for each event (Lucene has consumed an event's fields before it asks for the next one), so no
+     * per-event field objects are made. The binary form is kept once, as binary doc values.
+     */
+    private Iterable<Iterable<IndexableField>> documents(int ordinal, EventBatch b, long firstRow) {
       Columns c = spec.columns();
       List<String> features = c.features();
       List<String> categories = c.categories();
-      List<Document> docs = new ArrayList<>(b.size());
-      for (int i = 0; i < b.size(); i++) {
-        Document d = new Document();
-        for (int k = 0; k < features.size(); k++) {
-          d.add(new DoublePoint(Fields.point(features.get(k)), b.feature(i, k)));
-        }
-        d.add(new LongPoint(Fields.point(c.id()), b.id(i)));
-        if (b.hasRun()) {
-          d.add(new LongPoint(Fields.point(c.run()), b.run(i)));
-        }
-        if (b.hasScore()) {
-          d.add(new DoublePoint(Fields.point(c.score()), b.score(i)));
-        }
-        for (int k = 0; k < categories.size(); k++) {
-          d.add(new StringField(Fields.category(categories.get(k)), b.category(i, k), Field.Store.NO));
-        }
-        byte[] blob = new byte[layout.length];
-        layout.encode(b, i, ordinal, firstRow + i, blob);
-        BytesRef ref = new BytesRef(blob);
-        d.add(new BinaryDocValuesField(Fields.EVENT, ref));
-        d.add(new StoredField(Fields.EVENT, ref));
-        docs.add(d);
+      FloatPoint[] points = new FloatPoint[features.size()];
+      List<IndexableField> fields = new ArrayList<>();
+      for (int k = 0; k < points.length; k++) {
+        points[k] = new FloatPoint(Fields.point(features.get(k)), 0f);
+        fields.add(points[k]);
       }
-      return docs;
+      LongPoint id = new LongPoint(Fields.point(c.id()), 0L);
+      fields.add(id);
+      LongPoint run = b.hasRun() ? new LongPoint(Fields.point(c.run()), 0L) : null;
+      if (run != null) {
+        fields.add(run);
+      }
+      FloatPoint score = b.hasScore() ? new FloatPoint(Fields.point(c.score()), 0f) : null;
+      if (score != null) {
+        fields.add(score);
+      }
+      StringField[] labels = new StringField[categories.size()];
+      for (int k = 0; k < labels.length; k++) {
+        labels[k] = new StringField(Fields.category(categories.get(k)), "", Field.Store.NO);
+        fields.add(labels[k]);
+      }
+      byte[] blob = new byte[layout.length];
+      BinaryDocValuesField event = new BinaryDocValuesField(Fields.EVENT, new BytesRef(blob));
+      fields.add(event);
+      List<IndexableField> document = List.copyOf(fields);
+      return () -> new Iterator<>() {
+        private int i;
+
+        @Override
+        public boolean hasNext() {
+          return i < b.size();
+        }
+
+        @Override
+        public Iterable<IndexableField> next() {
+          if (i >= b.size()) {
+            throw new NoSuchElementException();
+          }
+          for (int k = 0; k < points.length; k++) {
+            // Float points find candidates; selections check the exact double in the binary form.
+            points[k].setFloatValue((float) b.feature(i, k));
+          }
+          id.setLongValue(b.id(i));
+          if (run != null) {
+            run.setLongValue(b.run(i));
+          }
+          if (score != null) {
+            score.setFloatValue((float) b.score(i));
+          }
+          for (int k = 0; k < labels.length; k++) {
+            labels[k].setStringValue(b.category(i, k));
+          }
+          // The writer copies the bytes when it takes the event, so one array serves every event.
+          layout.encode(b, i, ordinal, firstRow + i, blob);
+          i++;
+          return document;
+        }
+      };
     }
   }
 

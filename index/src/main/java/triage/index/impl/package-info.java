@@ -5,7 +5,7 @@
  *   <li>{@link triage.index.impl.Fields} — which columns become which Lucene fields;</li>
  *   <li>{@link triage.index.impl.LuceneIngest} — writes documents and commits the manifest atomically;</li>
  *   <li>{@link triage.index.impl.LuceneEventStore} — selections, sums and histograms over doc values;</li>
- *   <li>{@link triage.index.impl.Layout} — the binary form of one event (doc values and stored field).</li>
+ *   <li>{@link triage.index.impl.Layout} — the binary form of one event (kept as binary doc values).</li>
  * </ul>
  *
  * @triage.internal

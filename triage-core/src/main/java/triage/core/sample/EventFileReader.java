@@ -228,24 +228,87 @@ public final class EventFileReader {
       }
     }
 
+    /** The current row's fields. */
+    private final RowFields fields = new RowFields();
+
+    /**
+     * Reads the header and every row: unquoted lines through the {@link LineSplitter} fast path; from the first
+     * line holding a double quote on (or from the start when the header holds one), through Commons CSV, with
+     * line numbers carried on.
+     */
     void run(Reader reader) throws IOException {
+      LineSplitter lines = new LineSplitter(reader, delimiter);
+      boolean any;
+      try {
+        any = lines.next(fields);
+      } catch (IOException e) {
+        throw new InputException(file, 0, 0, "cannot read: " + rootMessage(e), e);
+      }
+      if (lines.quoted()) {
+        runCommons(lines.rest(), 0, true);
+        return;
+      }
+      if (!any) {
+        throw new InputException(file, 1, 0, "no header line: expected the column names", null);
+      }
+      readHeader(fields.toList());
+      startBatches();
+      while (true) {
+        long line = lines.linesBefore() + 1;
+        try {
+          if (!lines.next(fields)) {
+            break;
+          }
+        } catch (IOException e) {
+          throw new InputException(file, line, 0, "cannot parse the row: " + rootMessage(e), e);
+        }
+        rowsRead++;
+        row(line);
+      }
+      if (lines.quoted()) {
+        runCommons(lines.rest(), lines.linesBefore(), false);
+        return;
+      }
+      flushBatch();
+    }
+
+    private void startBatches() {
+      int featureCount = featureAt.length;
+      moments = new WeightedMoments[featureCount];
+      for (int k = 0; k < featureCount; k++) {
+        moments[k] = new WeightedMoments();
+      }
+      batch = new EventBatch(options.batchSize(), featureCount, variationAt.length / 2, categoryAt.length,
+          runAt >= 0, blockAt >= 0, scoreAt >= 0, categoryValues);
+    }
+
+    private void flushBatch() throws IOException {
+      if (batch.size() > 0) {
+        sink.accept(batch);
+        batch.clear();
+      }
+    }
+
+    /**
+     * Reads the rest through Commons CSV (quoted fields).
+     *
+     * @param reader the text from the first line to read through Commons CSV
+     * @param linesBefore lines read before that text
+     * @param header whether the text starts with the header line
+     */
+    private void runCommons(Reader reader, long linesBefore, boolean header) throws IOException {
       CSVFormat format = CSVFormat.DEFAULT.builder().setDelimiter(delimiter).setIgnoreEmptyLines(false)
           .setQuote('"').get();
       try (CSVParser parser = CSVParser.builder().setReader(reader).setFormat(format).get()) {
         Iterator<CSVRecord> it = parser.iterator();
+        if (header) {
+          if (!it.hasNext()) {
+            throw new InputException(file, 1, 0, "no header line: expected the column names", null);
+          }
+          readHeader(it.next().toList());
+          startBatches();
+        }
         long lineBefore = parser.getCurrentLineNumber();
-        if (!it.hasNext()) {
-          throw new InputException(file, 1, 0, "no header line: expected the column names", null);
-        }
-        readHeader(it.next());
-        int featureCount = featureAt.length;
-        moments = new WeightedMoments[featureCount];
-        for (int k = 0; k < featureCount; k++) {
-          moments[k] = new WeightedMoments();
-        }
-        batch = new EventBatch(options.batchSize(), featureCount, variationAt.length / 2, categoryAt.length,
-            runAt >= 0, blockAt >= 0, scoreAt >= 0, categoryValues);
-        lineBefore = parser.getCurrentLineNumber();
         while (true) {
           CSVRecord record;
           try {
@@ -254,20 +317,19 @@ public final class EventFileReader {
             }
             record = it.next();
           } catch (UncheckedIOException e) {
-            throw new InputException(file, lineBefore + 1, 0, "cannot parse the row: " + rootMessage(e), e);
+            throw new InputException(file, linesBefore + lineBefore + 1, 0, "cannot parse the row: "
+                + rootMessage(e), e);
           }
-          long line = lineBefore + 1;
+          long line = linesBefore + lineBefore + 1;
           lineBefore = parser.getCurrentLineNumber();
           rowsRead++;
-          row(record, line);
+          fields.set(record.toList());
+          row(line);
         }
       } catch (UncheckedIOException e) {
         throw new InputException(file, 0, 0, "cannot read: " + rootMessage(e), e);
       }
-      if (batch.size() > 0) {
-        sink.accept(batch);
-        batch.clear();
-      }
+      flushBatch();
     }
 
     private static String rootMessage(Throwable e) {
@@ -278,11 +340,11 @@ public final class EventFileReader {
       return t.getMessage();
     }
 
-    private void readHeader(CSVRecord record) {
+    private void readHeader(List<String> names) {
       header = new ArrayList<>();
       Map<String, Integer> at = new HashMap<>();
-      for (int i = 0; i < record.size(); i++) {
-        String name = record.get(i).strip();
+      for (int i = 0; i < names.size(); i++) {
+        String name = names.get(i).strip();
         if (i == 0 && name.startsWith("\uFEFF")) {
           name = name.substring(1);
         }
@@ -358,12 +420,13 @@ public final class EventFileReader {
       return i;
     }
 
-    private void row(CSVRecord record, long line) throws IOException {
+    private void row(long line) throws IOException {
+      RowFields record = fields;
       problem = null;
       if (record.size() != header.size()) {
         problem = new RowProblem(file, line, 0, null, null, Kind.FIELD_COUNT,
             header.size() + " fields as in the header, found " + record.size());
-        reject(record);
+        reject();
         return;
       }
       int slot = batch.next();
@@ -404,7 +467,7 @@ public final class EventFileReader {
         }
       }
       if (problem != null) {
-        reject(record);
+        reject();
         return;
       }
       batch.weights[slot] = w;
@@ -428,7 +491,7 @@ public final class EventFileReader {
       }
     }
 
-    private void reject(CSVRecord record) throws IOException {
+    private void reject() throws IOException {
       rowsRejected++;
       rejectedByKind.merge(problem.kind().label(), 1L, Long::sum);
       if (options.badRows() == BadRowPolicy.FAIL) {
@@ -436,10 +499,14 @@ public final class EventFileReader {
             InputException.place(file, problem.line(), problem.column()).length())
             + " (to set bad rows aside instead, use --on-bad-row skip)", null);
       }
-      rejects.reject(problem, record.toList());
+      rejects.reject(problem, fields.toList());
     }
 
-    private double number(CSVRecord record, int at, long line) {
+    private double number(RowFields record, int at, long line) {
+      double fast = fastNumber(record.chars, record.from[at], record.to[at]);
+      if (fast == fast) {
+        return fast;
+      }
       String text = record.get(at);
       double v = parseNumber(text);
       if (Double.isFinite(v)) {
@@ -462,7 +529,7 @@ public final class EventFileReader {
       return t.equalsIgnoreCase("nan") || t.equalsIgnoreCase("+nan") || t.equalsIgnoreCase("-nan");
     }
 
-    private double weight(CSVRecord record, int at, long line) {
+    private double weight(RowFields record, int at, long line) {
       double w = number(record, at, line);
       if (problem == null && !(w > 0) && options.weights() == WeightPolicy.POSITIVE) {
         problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at), Kind.NON_POSITIVE_WEIGHT,
@@ -471,7 +538,11 @@ public final class EventFileReader {
       return w;
     }
 
-    private long integer(CSVRecord record, int at, long line) {
+    private long integer(RowFields record, int at, long line) {
+      long fast = fastInteger(record.chars, record.from[at], record.to[at]);
+      if (fast != NO_INTEGER) {
+        return fast;
+      }
       String text = record.get(at).strip();
       try {
         return Long.parseLong(text);
@@ -482,7 +553,7 @@ public final class EventFileReader {
       }
     }
 
-    private int category(CSVRecord record, int k, long line) {
+    private int category(RowFields record, int k, long line) {
       int at = categoryAt[k];
       String text = record.get(at).strip();
       if (text.isEmpty()) {
@@ -515,6 +586,139 @@ public final class EventFileReader {
           rowsRejected, rejectedByKind, negativeWeights, zeroWeights, sumW.value(), sumW2.value(), means, sds,
           ignored);
     }
+  }
+
+  /** What {@link #fastInteger} returns when it cannot decide (a long it never returns). */
+  static final long NO_INTEGER = Long.MIN_VALUE;
+
+  /** Exact powers of ten 10^0 … 10^22 (each is a double without rounding). */
+  private static final double[] POWERS = new double[23];
+
+  static {
+    double p = 1;
+    for (int i = 0; i < POWERS.length; i++) {
+      POWERS[i] = p;
+      p *= 10;
+    }
+  }
+
+  /**
+   * The fast path of {@link #parseNumber} for the common spelling {@code [+-]digits[.digits][(e|E)[+-]digits]}
+   * with no blanks: NaN when the text has another form (then the caller takes the full path), else the same double
+   * as {@link Double#parseDouble}. Exact by Clinger's fast path: when the digits form an integer m ≤ 2^53 and the
+   * decimal exponent e has |e| ≤ 22, both m and 10^|e| are doubles without rounding, so the one multiplication or
+   * division m·10^e, m/10^−e is correctly rounded, as {@code parseDouble} is (W. D. Clinger, How to read floating
+   * point numbers accurately, PLDI 1990). Other cases (more digits, larger exponents) return NaN.
+   */
+  static double fastNumber(char[] a, int from, int to) {
+    int i = from;
+    if (i >= to) {
+      return Double.NaN;
+    }
+    boolean negative = false;
+    char c = a[i];
+    if (c == '-' || c == '+') {
+      negative = c == '-';
+      i++;
+    }
+    long m = 0;
+    int digits = 0;
+    int digitChars = 0;
+    int scale = 0;
+    boolean point = false;
+    for (; i < to; i++) {
+      c = a[i];
+      if (c >= '0' && c <= '9') {
+        digitChars++;
+        if (digits > 0 || c != '0') {
+          if (++digits > 18) {
+            return Double.NaN;
+          }
+        }
+        m = m * 10 + (c - '0');
+        if (point) {
+          scale++;
+        }
+      } else if (c == '.' && !point) {
+        point = true;
+      } else {
+        break;
+      }
+    }
+    if (digitChars == 0) {
+      return Double.NaN;
+    }
+    int exponent = 0;
+    if (i < to) {
+      c = a[i];
+      if (c != 'e' && c != 'E') {
+        return Double.NaN;
+      }
+      i++;
+      boolean negativeExponent = false;
+      if (i < to && (a[i] == '-' || a[i] == '+')) {
+        negativeExponent = a[i] == '-';
+        i++;
+      }
+      if (i >= to) {
+        return Double.NaN;
+      }
+      for (; i < to; i++) {
+        c = a[i];
+        if (c < '0' || c > '9' || exponent > 1000) {
+          return Double.NaN;
+        }
+        exponent = exponent * 10 + (c - '0');
+      }
+      if (negativeExponent) {
+        exponent = -exponent;
+      }
+    }
+    if (m > (1L << 53)) {
+      return Double.NaN;
+    }
+    int e = exponent - scale;
+    double v;
+    if (m == 0) {
+      v = 0.0;
+    } else if (e >= 0 && e <= 22) {
+      v = m * POWERS[e];
+    } else if (e < 0 && e >= -22) {
+      v = m / POWERS[-e];
+    } else {
+      return Double.NaN;
+    }
+    return negative ? -v : v;
+  }
+
+  /**
+   * The fast path of whole-number parsing for {@code [+-]digits} with at most 18 digits and no blanks: the value,
+   * or {@link #NO_INTEGER} when the text has another form (then the caller uses {@link Long#parseLong}).
+   */
+  static long fastInteger(char[] a, int from, int to) {
+    int i = from;
+    if (i >= to) {
+      return NO_INTEGER;
+    }
+    boolean negative = false;
+    char c = a[i];
+    if (c == '-' || c == '+') {
+      negative = c == '-';
+      i++;
+    }
+    int n = to - i;
+    if (n <= 0 || n > 18) {
+      return NO_INTEGER;
+    }
+    long v = 0;
+    for (; i < to; i++) {
+      c = a[i];
+      if (c < '0' || c > '9') {
+        return NO_INTEGER;
+      }
+      v = v * 10 + (c - '0');
+    }
+    return negative ? -v : v;
   }
 
   /**

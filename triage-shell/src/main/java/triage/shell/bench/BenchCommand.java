@@ -88,6 +88,11 @@ public final class BenchCommand implements Runnable {
         description = "Indexing threads (default: ${DEFAULT-VALUE}).")
     int threads;
 
+    /** Lucene's RAM buffer. */
+    @Option(names = "--ram-buffer-mb", defaultValue = "256", paramLabel = "MB",
+        description = "Lucene's in-memory buffer before a segment is written (default: ${DEFAULT-VALUE}).")
+    double ramBufferMb;
+
     @Override
     public Integer call() throws Exception {
       Output o = new Output(spec, false);
@@ -101,11 +106,16 @@ public final class BenchCommand implements Runnable {
             (Files.size(folder.resolve("data/reference.csv")) + Files.size(folder.resolve("data/observed.csv"))) / 1e6);
         System.gc();
         try (HeapSampler heap = new HeapSampler()) {
-          IngestReport r = Ingest.run(s, folder.resolve("index"),
-              Ingest.Options.defaults().withReplace(true).withThreads(threads), line -> { });
+          double cpu0 = HeapSampler.processCpuSeconds();
+          IngestReport r = Ingest.run(s, folder.resolve("index"), Ingest.Options.defaults().withReplace(true)
+              .withThreads(threads).withRamBufferMb(ramBufferMb), line -> { });
+          double cpu = HeapSampler.processCpuSeconds() - cpu0;
           o.say("ingest: %d events in %.2f s = %.0f events/s (%d indexing threads, %d cores, max heap %d MiB)",
               r.rowsIndexed(), r.seconds(), r.rowsIndexed() / r.seconds(), threads,
               Runtime.getRuntime().availableProcessors(), Runtime.getRuntime().maxMemory() >> 20);
+          o.say("process CPU time during ingest: %.2f s = %.2f µs per event (%.0f events per CPU second; "
+              + "steadier than wall time on a shared machine)", cpu, cpu * 1e6 / r.rowsIndexed(),
+              r.rowsIndexed() / cpu);
           o.say("peak heap in use during ingest: %.0f MiB", heap.peakMiB());
         }
       } finally {
@@ -141,10 +151,12 @@ public final class BenchCommand implements Runnable {
           SampleSpec s = BenchData.write(folder.resolve("data"), n, features, seed);
           System.gc();
           try (HeapSampler heap = new HeapSampler()) {
+            double cpu0 = HeapSampler.processCpuSeconds();
             IngestReport r = Ingest.run(s, index, Ingest.Options.defaults().withReplace(true), line -> { });
-            o.say("ingest: %d events in %.1f s = %.0f events/s; peak heap in use %.0f MiB (max heap %d MiB)",
-                r.rowsIndexed(), r.seconds(), r.rowsIndexed() / r.seconds(), heap.peakMiB(),
-                Runtime.getRuntime().maxMemory() >> 20);
+            double cpu = HeapSampler.processCpuSeconds() - cpu0;
+            o.say("ingest: %d events in %.1f s = %.0f events/s (CPU %.2f µs per event); peak heap in use %.0f MiB "
+                + "(max heap %d MiB)", r.rowsIndexed(), r.seconds(), r.rowsIndexed() / r.seconds(),
+                cpu * 1e6 / r.rowsIndexed(), heap.peakMiB(), Runtime.getRuntime().maxMemory() >> 20);
           }
         }
         try (EventStore store = EventStore.open(index)) {

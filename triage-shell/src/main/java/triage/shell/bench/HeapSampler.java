@@ -35,6 +35,15 @@ final class HeapSampler implements AutoCloseable {
     thread.start();
   }
 
+  /** CPU time used by this process so far (every thread, the collector's too), seconds; NaN when unknown. */
+  static double processCpuSeconds() {
+    if (ManagementFactory.getOperatingSystemMXBean() instanceof com.sun.management.OperatingSystemMXBean os) {
+      long ns = os.getProcessCpuTime();
+      return ns < 0 ? Double.NaN : ns / 1e9;
+    }
+    return Double.NaN;
+  }
+
   /** The peak heap in use so far, MiB. */
   double peakMiB() {
     return peak / (1024.0 * 1024.0);
