@@ -306,6 +306,20 @@ public final class LuceneIngest {
       rethrow();
       long firstRow = nextRow;
       nextRow += batch.size();
+      onPool(() -> {
+        writer.addDocuments(documents(state.ordinal, batch, firstRow));
+        state.added.addAndGet(batch.size());
+      });
+    }
+
+    /** Work for an indexing thread. */
+    private interface Task {
+      /** Runs the work. */
+      void run() throws IOException;
+    }
+
+    /** Takes a permit (waiting while all are taken), runs the task on the pool, keeps its first failure. */
+    private void onPool(Task task) throws IOException {
       try {
         inFlight.acquire();
       } catch (InterruptedException e) {
@@ -314,8 +328,7 @@ public final class LuceneIngest {
       }
       pool.execute(() -> {
         try {
-          writer.addDocuments(documents(state.ordinal, batch, firstRow));
-          state.added.addAndGet(batch.size());
+          task.run();
         } catch (Throwable t) {
           failure.compareAndSet(null, t);
         } finally {
@@ -345,21 +358,9 @@ public final class LuceneIngest {
     void finish() throws IOException {
       awaitQuiet();
       for (int t = 0; t < permits / 2; t++) {
-        try {
-          inFlight.acquire();
-        } catch (InterruptedException e) {
-          Thread.currentThread().interrupt();
-          throw new IOException("interrupted", e);
-        }
-        pool.execute(() -> {
-          try {
-            while (writer.flushNextBuffer()) {
-              // one buffer per call
-            }
-          } catch (Throwable e) {
-            failure.compareAndSet(null, e);
-          } finally {
-            inFlight.release();
+        onPool(() -> {
+          while (writer.flushNextBuffer()) {
+            // one buffer per call
           }
         });
       }

@@ -12,8 +12,8 @@ import triage.core.ratio.FitSettings;
 /**
  * Speed of a calibration (a program, not a test: nothing is asserted): null toys drawn from a
  * weighted N(0, I_d) reference of {@code nRef} events with N_exp = {@code nObs}, each fitted like
- * the observed data by default (d-5-5-1 sigmoid, clip 9, projected L-BFGS to the default stopping
- * rule), one after the other with {@code threads} threads per fit, as {@code triage calibrate}
+ * the observed data by default (d-5-5-1 sigmoid, the given clip, projected L-BFGS to the default
+ * stopping rule), one after the other with {@code threads} threads per fit, as {@code triage calibrate}
  * runs them. Prints each toy's seconds, iterations, convergence and t, then the mean and median
  * seconds per toy and the wall time they project for 1,000 toys.
  */
@@ -22,14 +22,14 @@ public final class CalibrationBenchmark {
   }
 
   /** Runs {@code toys} null toys and prints the figures to {@code out}. */
-  public static void run(PrintStream out, int threads, int nRef, int nObs, int d, int toys)
+  public static void run(PrintStream out, int threads, int nRef, int nObs, int d, int toys, double clip)
       throws IOException {
     double[][] ref = FitBenchmark.gaussianReference(d, nRef, 7L);
     List<String> names = new ArrayList<>();
     for (int k = 0; k < d; k++) {
       names.add("x" + k);
     }
-    FitSettings settings = FitSettings.defaults().withThreads(threads);
+    FitSettings settings = FitSettings.defaults().withThreads(threads).withClip(clip);
     out.printf(Locale.ROOT, "CalibrationBenchmark: %dD, reference %d, N_exp %d, network %s, clip %.1f, %s, "
         + "threads %d, %d toys%n", d, nRef, nObs, settings.hiddenWidths(), settings.clip(), settings.optimiser(),
         threads, toys);

@@ -320,7 +320,7 @@ public final class BenchCommand implements Runnable {
 
   /** {@code triage bench calibrate}. */
   @Command(name = "calibrate", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
-      description = {"Null toys of a calibration at 5D (weighted N(0, I) reference, d-5-5-1 sigmoid, clip 9, the "
+      description = {"Null toys of a calibration at 5D (weighted N(0, I) reference, d-5-5-1 sigmoid, clip 9 or --clip, the "
           + "default stopping rule): seconds, iterations and t per toy, and the wall time that projects for 1,000 "
           + "toys."})
   static final class CalibrateBench implements Callable<Integer> {
@@ -337,10 +337,15 @@ public final class BenchCommand implements Runnable {
     @Option(names = "--toys", defaultValue = "5", paramLabel = "N", description = "Toys (default: ${DEFAULT-VALUE}).")
     int toys;
 
+    /** Clip. */
+    @Option(names = "--clip", defaultValue = "9", paramLabel = "C",
+        description = "Weight clip of the toy fits (default: ${DEFAULT-VALUE}, as `fit`).")
+    double clip;
+
     @Override
     public Integer call() throws IOException {
       triage.core.calibration.CalibrationBenchmark.run(System.out, sizes.threads, sizes.reference, sizes.observed,
-          features, toys);
+          features, toys, clip);
       return ExitCodes.OK;
     }
   }
