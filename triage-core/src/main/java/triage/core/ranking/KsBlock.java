@@ -4,8 +4,8 @@ package triage.core.ranking;
  * The inner loop of the permutation KS test: the weighted KS distances of eight labelings at once along one
  * feature's sorted order (see {@link MaxTPermutationTest#testKolmogorovSmirnov}). Two implementations perform the
  * same IEEE-754 operations per lane in the same order, so they give bit-identical distances: plain Java, and one
- * on the incubating Vector API (eight double lanes, one per labeling) used when the module
- * {@code jdk.incubator.vector} is present and the machine has 512-bit vectors.
+ * on the incubating Vector API (one double lane per labeling) used when the module
+ * {@code jdk.incubator.vector} is present and the machine has 256- or 512-bit vectors.
  */
 interface KsBlock {
   /** Labelings per call. */
