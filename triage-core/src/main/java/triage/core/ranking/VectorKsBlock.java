@@ -6,11 +6,11 @@ import jdk.incubator.vector.VectorSpecies;
 
 /**
  * {@link KsBlock} on the Vector API, one double lane per labeling, the same additions as {@link ScalarKsBlock} in the
- * same order. With 512-bit vectors the eight labelings are one vector and a labeling's sum takes the weight where its
- * bit is set (a masked add). With 256-bit vectors they are two vectors of four (labelings 0–3 and 4–7), and each adds
- * the weight times a 0/1 indicator read from a table by four bits of the labels: w·1 = w and s + w·0 = s exactly for
- * the finite, never negative-zero sums here, so the result is again bit for bit the scalar one. Loaded only by
- * reflection when the module is present; refuses to construct with fewer than four double lanes.
+ * same order. With 512-bit vectors the eight labelings are one vector and a labeling's sum takes the weight where
+ * its bit is set (a masked add). With 256-bit vectors they are two vectors of four (labelings 0–3 and 4–7), and
+ * each adds the weight times a 0/1 indicator read from a table by four bits of the labels: w·1 = w and s + w·0 = s
+ * exactly for the finite, never negative-zero sums here, so the result is again bit for bit the scalar one. Loaded
+ * only by reflection when the module is present; refuses to construct with fewer than four double lanes.
  */
 final class VectorKsBlock implements KsBlock {
   /** Eight lanes. */

@@ -127,7 +127,8 @@ public final class FitBenchmark {
           + " achieved/limit = %.2f%n", h + 1, h, ops, limit * 1e3, vectorEval / limit);
     }
     FrameworkExport.Trajectory trajectory = new FrameworkExport.Trajectory();
-    FitResult lb = RatioTrainer.fit(data, base, trajectory);
+    FitResult lb = RatioTrainer.fit(data, base,
+        exportDir != null ? trajectory : TrainingListener.NONE);
     double lbSeconds = lb.elapsedSeconds();
     out.printf(Locale.ROOT, "  loss at L-BFGS iteration (log): %s%n", progress(lb.log()));
     out.printf(Locale.ROOT, "  projected L-BFGS: %.3f s, %d iterations, %d evaluations (%.3f ms each), t = %.4f,"

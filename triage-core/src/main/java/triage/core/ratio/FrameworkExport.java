@@ -2,10 +2,7 @@ package triage.core.ratio;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.SerializationFeature;
-import java.io.BufferedOutputStream;
-import java.io.DataOutputStream;
 import java.io.IOException;
-import java.io.OutputStream;
 import java.nio.ByteBuffer;
 import java.nio.ByteOrder;
 import java.nio.file.Files;
@@ -61,24 +58,23 @@ final class FrameworkExport {
     int m = data.referenceCount() + data.observedCount();
     double[] theta0 = RatioTrainer.initialParameters(arch, SplitMix64.derive(settings.seed(), 0),
         settings.clip());
-    try (OutputStream os = Files.newOutputStream(dir.resolve(name + ".f64"));
-       DataOutputStream out = new DataOutputStream(new BufferedOutputStream(os, 1 << 16))) {
-      ByteBuffer buf = ByteBuffer.allocate(8).order(ByteOrder.LITTLE_ENDIAN);
-      for (int k = 0; k < d; k++) {
-        for (int e = 0; e < m; e++) {
-          writeDouble(out, buf, b.x[k * b.n + e]);
-        }
-      }
+    ByteBuffer out = ByteBuffer.allocate(8 * (d * m + 2 * m + theta0.length))
+        .order(ByteOrder.LITTLE_ENDIAN);
+    for (int k = 0; k < d; k++) {
       for (int e = 0; e < m; e++) {
-        writeDouble(out, buf, b.coefA[e]);
-      }
-      for (int e = 0; e < m; e++) {
-        writeDouble(out, buf, b.coefB[e]);
-      }
-      for (double v : theta0) {
-        writeDouble(out, buf, v);
+        out.putDouble(b.x[k * b.n + e]);
       }
     }
+    for (int e = 0; e < m; e++) {
+      out.putDouble(b.coefA[e]);
+    }
+    for (int e = 0; e < m; e++) {
+      out.putDouble(b.coefB[e]);
+    }
+    for (double v : theta0) {
+      out.putDouble(v);
+    }
+    Files.write(dir.resolve(name + ".f64"), out.array());
     Map<String, Object> meta = new LinkedHashMap<>();
     meta.put("case", name);
     meta.put("features", d);
@@ -101,12 +97,5 @@ final class FrameworkExport {
     meta.put("trajectoryT", trajectory.t);
     new ObjectMapper().enable(SerializationFeature.INDENT_OUTPUT)
         .writeValue(dir.resolve(name + ".json").toFile(), meta);
-  }
-
-  private static void writeDouble(DataOutputStream out, ByteBuffer buf, double v)
-      throws IOException {
-    buf.clear();
-    buf.putDouble(v);
-    out.write(buf.array(), 0, 8);
   }
 }

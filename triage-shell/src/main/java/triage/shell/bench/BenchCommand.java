@@ -265,7 +265,8 @@ public final class BenchCommand implements Runnable {
   /** Threads and sample sizes of the fit and calibration benchmarks. */
   static final class FitSizes {
     /** Threads. */
-    @Option(names = "--threads", defaultValue = "2", paramLabel = "N", description = "Threads (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--threads", defaultValue = "2", paramLabel = "N",
+        description = "Threads (default: ${DEFAULT-VALUE}).")
     int threads;
 
     /** Reference events. */
@@ -320,9 +321,9 @@ public final class BenchCommand implements Runnable {
 
   /** {@code triage bench calibrate}. */
   @Command(name = "calibrate", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
-      description = {"Null toys of a calibration at 5D (weighted N(0, I) reference, d-5-5-1 sigmoid, clip 9 or --clip, the "
-          + "default stopping rule): seconds, iterations and t per toy, and the wall time that projects for 1,000 "
-          + "toys."})
+      description = {"Null toys of a calibration (5D by default; weighted N(0, I) reference, d-5-5-1 sigmoid, "
+          + "clip 9 or --clip, the default stopping rule): seconds, iterations and t per toy, and the wall time "
+          + "that projects for 1,000 toys."})
   static final class CalibrateBench implements Callable<Integer> {
     /** Threads and sample sizes. */
     @CommandLine.Mixin
