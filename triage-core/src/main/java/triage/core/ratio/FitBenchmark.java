@@ -149,6 +149,20 @@ public final class FitBenchmark {
       out.printf(Locale.ROOT, "  projected L-BFGS, %d starts: %.3f s, %d evaluations, best t = %.4f, start losses %s%n",
           starts, lb4.elapsedSeconds(), lb4.lossEvaluations(), lb4.testStatistic(),
           java.util.Arrays.toString(lb4.restartLosses()));
+      // the fit is chaotic at clip 9 (contributor guide), so one seed's time and t are one draw:
+      // every start's figures, and their spread
+      double[] secs = new double[starts];
+      double[] ts = new double[starts];
+      for (RestartSummary r : lb4.starts()) {
+        out.printf(Locale.ROOT, "    start %d: %.3f s, %d iterations, %d evaluations, t = %.4f, %s%n", r.index(),
+            r.elapsedSeconds(), r.iterations(), r.lossEvaluations(), r.testStatistic(), r.stopReason());
+        secs[r.index()] = r.elapsedSeconds();
+        ts[r.index()] = r.testStatistic();
+      }
+      java.util.Arrays.sort(secs);
+      java.util.Arrays.sort(ts);
+      out.printf(Locale.ROOT, "    over the %d starts: seconds %.3f-%.3f (median %.3f), t %.4f-%.4f (median %.4f)%n",
+          starts, secs[0], secs[starts - 1], median(secs), ts[0], ts[starts - 1], median(ts));
     }
     for (double lr : new double[] {1e-3, 1e-2}) {
       FitResult ad = RatioTrainer.fit(data, base.withOptimiser(OptimiserKind.ADAM)
@@ -157,6 +171,12 @@ public final class FitBenchmark {
           lr, adamEpochs, ad.elapsedSeconds(), ad.elapsedSeconds() / adamEpochs * 1e3,
           ad.testStatistic(), ad.finalLoss(), ad.converged());
     }
+  }
+
+  /** Median of a sorted array. */
+  private static double median(double[] sorted) {
+    int n = sorted.length;
+    return n % 2 == 1 ? sorted[n / 2] : 0.5 * (sorted[n / 2 - 1] + sorted[n / 2]);
   }
 
   /** A few (iteration, loss) pairs of a log. */

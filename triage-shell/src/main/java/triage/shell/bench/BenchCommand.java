@@ -302,7 +302,8 @@ public final class BenchCommand implements Runnable {
 
     /** Starts. */
     @Option(names = "--starts", defaultValue = "4", paramLabel = "N",
-        description = "Random starts of the extra multi-start fit (default: ${DEFAULT-VALUE}; 1 skips it).")
+        description = "Random starts of the extra multi-start fit (default: ${DEFAULT-VALUE}; 1 skips it); "
+            + "each start's seconds and t are printed with their spread, since one seed's fit is one draw.")
     int starts;
 
     /** Export folder. */
