@@ -162,8 +162,12 @@ public final class BinnedJensenShannon {
    * @return JSD in the configured base
    */
   public double statistic(double[] x, double[] wx, double[] y, double[] wy) {
-    final WeightedSample a = WeightedSample.of("observed", x, wx, negativeWeights);
-    final WeightedSample b = WeightedSample.of("reference", y, wy, negativeWeights);
+    return statistic(WeightedSample.of("observed", x, wx, negativeWeights),
+        WeightedSample.of("reference", y, wy, negativeWeights));
+  }
+
+  /** {@link #statistic(double[], double[], double[], double[])} on samples already sorted and validated. */
+  double statistic(WeightedSample a, WeightedSample b) {
     final double[] e = edges(b);
     final double[] p = histogram(a, e, "observed");
     final double[] q = histogram(b, e, "reference");

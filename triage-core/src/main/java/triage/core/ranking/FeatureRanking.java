@@ -57,7 +57,6 @@ public final class FeatureRanking {
     }
     WeightedKolmogorovSmirnovTest ks = WeightedKolmogorovSmirnovTest.withDefaults()
         .with(NegativeWeights.ALLOW);
-    WeightedRocAuc auc = WeightedRocAuc.withDefaults().with(NegativeWeights.ALLOW);
     WeightedWasserstein w1 = WeightedWasserstein.withDefaults().with(WeightedWasserstein.Units.REFERENCE_STANDARD_DEVIATION)
         .with(NegativeWeights.ALLOW);
     BinnedJensenShannon js = BinnedJensenShannon.withDefaults().with(NegativeWeights.ALLOW);
@@ -89,12 +88,14 @@ public final class FeatureRanking {
     // Features are independent: computed in parallel, collected in feature order.
     final double[] raw = rawP;
     final double[] adj = adjP;
+    // Each feature's two samples are sorted once and shared by the four measures (the same values as
+    // calling each measure's public method, which sorts its own copy).
     List<Row> rows = new ArrayList<>(java.util.stream.IntStream.range(0, nf).parallel().mapToObj(f -> {
-      var k = ks.test(observed[f], ones, reference[f], referenceWeights);
-      return new Row(names.get(f), k.statistic(), k.pValue(),
-          auc.separation(observed[f], ones, reference[f], referenceWeights),
-          w1.statistic(observed[f], ones, reference[f], referenceWeights),
-          js.statistic(observed[f], ones, reference[f], referenceWeights), raw[f], adj[f]);
+      WeightedSample a = WeightedSample.of("observed", observed[f], ones, NegativeWeights.ALLOW);
+      WeightedSample b = WeightedSample.of("reference", reference[f], referenceWeights, NegativeWeights.ALLOW);
+      var k = ks.test(a, b);
+      return new Row(names.get(f), k.statistic(), k.pValue(), WeightedRocAuc.separation(a, b),
+          w1.statistic(a, b), js.statistic(a, b), raw[f], adj[f]);
     }).toList());
     rows.sort(Comparator.comparingDouble(Row::ks).reversed());
     return rows;

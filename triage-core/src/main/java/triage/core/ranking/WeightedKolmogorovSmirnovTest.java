@@ -146,8 +146,12 @@ public final class WeightedKolmogorovSmirnovTest {
    * @return weighted D and p-value
    */
   public Result test(double[] x, double[] wx, double[] y, double[] wy) {
-    final WeightedSample a = WeightedSample.of("observed", x, wx, negativeWeights);
-    final WeightedSample b = WeightedSample.of("reference", y, wy, negativeWeights);
+    return test(WeightedSample.of("observed", x, wx, negativeWeights),
+        WeightedSample.of("reference", y, wy, negativeWeights));
+  }
+
+  /** {@link #test(double[], double[], double[], double[])} on samples already sorted and validated. */
+  Result test(WeightedSample a, WeightedSample b) {
     final double d = distance(a, b);
     final double ne = a.effectiveSize();
     final double me = b.effectiveSize();

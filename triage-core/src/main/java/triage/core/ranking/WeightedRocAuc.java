@@ -65,8 +65,12 @@ public final class WeightedRocAuc {
    * @return weighted AUC
    */
   public double statistic(double[] x, double[] wx, double[] y, double[] wy) {
-    final WeightedSample a = WeightedSample.of("observed", x, wx, negativeWeights);
-    final WeightedSample b = WeightedSample.of("reference", y, wy, negativeWeights);
+    return statistic(WeightedSample.of("observed", x, wx, negativeWeights),
+        WeightedSample.of("reference", y, wy, negativeWeights));
+  }
+
+  /** {@link #statistic(double[], double[], double[], double[])} on samples already sorted and validated. */
+  static double statistic(WeightedSample a, WeightedSample b) {
     final double[] xv = a.values;
     final double[] yv = b.values;
     final int n = xv.length;
@@ -100,5 +104,10 @@ public final class WeightedRocAuc {
    */
   public double separation(double[] x, double[] wx, double[] y, double[] wy) {
     return Math.abs(statistic(x, wx, y, wy) - 0.5);
+  }
+
+  /** {@link #separation(double[], double[], double[], double[])} on samples already sorted and validated. */
+  static double separation(WeightedSample a, WeightedSample b) {
+    return Math.abs(statistic(a, b) - 0.5);
   }
 }

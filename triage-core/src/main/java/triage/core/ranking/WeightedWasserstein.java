@@ -85,8 +85,12 @@ public final class WeightedWasserstein {
    * @return weighted W_1 in the configured units
    */
   public double statistic(double[] x, double[] wx, double[] y, double[] wy) {
-    final WeightedSample a = WeightedSample.of("observed", x, wx, negativeWeights);
-    final WeightedSample b = WeightedSample.of("reference", y, wy, negativeWeights);
+    return statistic(WeightedSample.of("observed", x, wx, negativeWeights),
+        WeightedSample.of("reference", y, wy, negativeWeights));
+  }
+
+  /** {@link #statistic(double[], double[], double[], double[])} on samples already sorted and validated. */
+  double statistic(WeightedSample a, WeightedSample b) {
     final double w = distance(a, b);
     if (units == Units.RAW) {
       return w;
