@@ -213,6 +213,14 @@ class EventStoreTest {
         }
       }
     }
+    // without a condition rows() takes its one-pass path: every event, in row order
+    for (String sample : List.of("reference", "observed")) {
+      EventStore.SelectedRows every = store.rows(sample, List.of("a", "c"), Selection.all());
+      double[][] all = store.columns(sample, List.of("a", "c"));
+      org.junit.jupiter.api.Assertions.assertArrayEquals(all[0], every.columns()[0], 0.0);
+      org.junit.jupiter.api.Assertions.assertArrayEquals(all[1], every.columns()[1], 0.0);
+      org.junit.jupiter.api.Assertions.assertArrayEquals(store.weights(sample), every.weights(), 0.0);
+    }
     triage.core.select.WhereException e = assertThrows(triage.core.select.WhereException.class,
         () -> store.where("a > 1 AND mass < 2"));
     assertTrue(e.getMessage().contains("unknown column 'mass'"), e.getMessage());

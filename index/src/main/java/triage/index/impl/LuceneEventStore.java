@@ -777,6 +777,9 @@ public final class LuceneEventStore implements EventStore {
   public EventStore.SelectedRows rows(String sample, List<String> columns, Selection selection) throws IOException {
     Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     long first = facts.firstRow();
+    if (selection.ranges().isEmpty() && selection.categories().isEmpty() && selection.residual() == null) {
+      return allRows(sample, facts, columns);
+    }
     java.util.BitSet kept = mask(selection, sample);
     // Rank of a row among the kept ones: popcounts before each 64-bit word, then within the word.
     long[] words = kept.toLongArray();
@@ -808,6 +811,27 @@ public final class LuceneEventStore implements EventStore {
           w[j] = Layout.getDouble(b, base + Layout.WEIGHT);
         };
       }
+    });
+    return new EventStore.SelectedRows(out, w);
+  }
+
+  /** Every row of a sample, in row order: one pass, no mask (a row's place is its row number). */
+  private EventStore.SelectedRows allRows(String sample, Manifest.Sample facts, List<String> columns)
+      throws IOException {
+    long first = facts.firstRow();
+    int count = (int) facts.events();
+    double[][] out = new double[columns.size()][count];
+    double[] w = new double[count];
+    ValueReader[] readers = new ValueReader[columns.size()];
+    for (int k = 0; k < readers.length; k++) {
+      readers[k] = valueReader(columns.get(k));
+    }
+    scanSample(sample, (b, base) -> {
+      int i = (int) (Layout.getLong(b, base + Layout.ROW) - first);
+      for (int k = 0; k < readers.length; k++) {
+        out[k][i] = readers[k].value(b, base);
+      }
+      w[i] = Layout.getDouble(b, base + Layout.WEIGHT);
     });
     return new EventStore.SelectedRows(out, w);
   }
