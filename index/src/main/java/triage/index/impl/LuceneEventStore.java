@@ -735,6 +735,14 @@ public final class LuceneEventStore implements EventStore {
 
   @Override
   public double[][] columns(String sample, List<String> columns) throws IOException {
+    return readAll(sample, columns, null);
+  }
+
+  /**
+   * Every row of a sample in row order, in one pass: the columns, and the weights into {@code weights} when it is
+   * not null (sized to the sample's events).
+   */
+  private double[][] readAll(String sample, List<String> columns, double[] weights) throws IOException {
     Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     if (facts.events() > Integer.MAX_VALUE - 8) {
       throw new IndexException(dir, "sample '" + sample + "' has more events than one array can hold");
@@ -750,6 +758,9 @@ public final class LuceneEventStore implements EventStore {
           int i = (int) (Layout.getLong(b, base + Layout.ROW) - first);
           for (int k = 0; k < readers.length; k++) {
             out[k][i] = readers[k].value(b, base);
+          }
+          if (weights != null) {
+            weights[i] = Layout.getDouble(b, base + Layout.WEIGHT);
           }
         });
     return out;
@@ -778,7 +789,9 @@ public final class LuceneEventStore implements EventStore {
     Manifest.Sample facts = manifest.samples().get(sampleOrdinal(sample));
     long first = facts.firstRow();
     if (selection.ranges().isEmpty() && selection.categories().isEmpty() && selection.residual() == null) {
-      return allRows(sample, facts, columns);
+      // no condition: every row in one pass, no mask (a row's place is its row number)
+      double[] w = new double[(int) Math.min(facts.events(), Integer.MAX_VALUE - 8)];
+      return new EventStore.SelectedRows(readAll(sample, columns, w), w);
     }
     java.util.BitSet kept = mask(selection, sample);
     // Rank of a row among the kept ones: popcounts before each 64-bit word, then within the word.
@@ -811,27 +824,6 @@ public final class LuceneEventStore implements EventStore {
           w[j] = Layout.getDouble(b, base + Layout.WEIGHT);
         };
       }
-    });
-    return new EventStore.SelectedRows(out, w);
-  }
-
-  /** Every row of a sample, in row order: one pass, no mask (a row's place is its row number). */
-  private EventStore.SelectedRows allRows(String sample, Manifest.Sample facts, List<String> columns)
-      throws IOException {
-    long first = facts.firstRow();
-    int count = (int) facts.events();
-    double[][] out = new double[columns.size()][count];
-    double[] w = new double[count];
-    ValueReader[] readers = new ValueReader[columns.size()];
-    for (int k = 0; k < readers.length; k++) {
-      readers[k] = valueReader(columns.get(k));
-    }
-    scanSample(sample, (b, base) -> {
-      int i = (int) (Layout.getLong(b, base + Layout.ROW) - first);
-      for (int k = 0; k < readers.length; k++) {
-        out[k][i] = readers[k].value(b, base);
-      }
-      w[i] = Layout.getDouble(b, base + Layout.WEIGHT);
     });
     return new EventStore.SelectedRows(out, w);
   }
