@@ -76,7 +76,7 @@ final class DemoReport {
         .append(h.path("observed").asLong()).append(" observed events on ").append(num(h.path("expected")))
         .append(" expected, local Z<sub>Bi</sub> = ").append(num(h.path("localZBi")))
         .append(" (local, and selected on these data). The features that set them apart from the reference "
-            + "(weighted Kolmogorov–Smirnov distance; permutation p-values adjusted over the features by the "
+            + "(weighted Kolmogorov–Smirnov distance; resampling p-values adjusted over the features by the "
             + "max-statistic method are computed for the comparison inside a selection):</p>\n");
     features(b, h.path("topFeatures"));
 
@@ -164,7 +164,7 @@ final class DemoReport {
       r[i] = row(x.path("feature").asText(), num(x.path("ks")), num(x.path("ksAsymptoticP")),
           num(x.path("adjustedP")));
     }
-    table(b, new String[] {"feature", "KS distance", "KS p (asymptotic, a guide)", "permutation p, max-T adjusted"},
+    table(b, new String[] {"feature", "KS distance", "KS p (asymptotic, a guide)", "resampling p, max-T adjusted"},
         r);
   }
 

@@ -22,8 +22,10 @@ import triage.index.Selection;
         + "(a) all reference events, where the selection lives; (b) reference events inside the same selection, "
         + "what the selection still does not explain.",
         "Measures: weighted KS distance, |AUC - 0.5|, Wasserstein-1 in reference standard deviations, binned "
-            + "Jensen-Shannon divergence, and permutation p-values of the KS distance with the maxT adjustment "
-            + "across features."},
+            + "Jensen-Shannon divergence, and resampling p-values of the KS distance with the maxT adjustment "
+            + "across features: label permutations when all reference weights are equal, else null samples drawn "
+            + "from the weighted reference (n events with probability proportional to weight; the rest, weighted "
+            + "w/(1 - pi), as their reference)."},
     footer = ExitCodes.FOOTER)
 public final class RankCommand implements Callable<Integer> {
   /** Filled by picocli. */
@@ -46,7 +48,8 @@ public final class RankCommand implements Callable<Integer> {
 
   /** Permutations. */
   @Option(names = "--permutations", defaultValue = "200", paramLabel = "B",
-      description = "Label permutations for the p-values of the comparison inside the selection (default: "
+      description = "Permutations (or null draws, for unequal reference weights) for the p-values of the "
+          + "comparison inside the selection (default: "
           + "${DEFAULT-VALUE}; 0 for none). Against all reference events the selection's own cuts make such "
           + "p-values trivially small, so only the asymptotic KS p-value is given there.")
   int permutations;
@@ -83,7 +86,7 @@ public final class RankCommand implements Callable<Integer> {
     w1,
     /** Jensen–Shannon. */
     js,
-    /** Adjusted permutation p-value. */
+    /** Adjusted resampling p-value. */
     p
   }
 
@@ -187,7 +190,9 @@ public final class RankCommand implements Callable<Integer> {
           result.put("attribution", attribution);
         }
       }
-      o.say("note: 'perm p' is the permutation p-value of the KS distance, (k+1)/(B+1), and 'p adj' the same "
+      o.say("note: 'p raw' is the resampling p-value of the KS distance, (k+1)/(B+1) (label permutations when the "
+          + "reference weights are all equal, else null samples drawn from the weighted reference; '-' when the "
+          + "weights differ and the reference inside has fewer than twice the observed events), and 'p adj' the same "
           + "adjusted for the %d features (maxT); 'KS p asym' uses effective sample sizes and is a guide only. "
           + "All are local to this selection.", features.size());
       o.result(result);
@@ -227,10 +232,15 @@ public final class RankCommand implements Callable<Integer> {
     o.say("");
     o.say("%s", title);
     o.say("  %-14s %8s %10s %8s %10s %9s %8s %8s", "feature", "KS D", "|AUC-0.5|", "W1/sd", "JS (nats)", "KS p asym",
-        "perm p", "p adj");
+        "p raw", "p adj");
     for (FeatureRanking.Row r : rows) {
-      o.say("  %-14s %8.4f %10.4f %8.4f %10.5f %9.3g %8.3g %8.3g", r.feature(), r.ks(), r.aucSeparation(),
-          r.wasserstein(), r.jensenShannon(), r.ksAsymptoticP(), r.rawP(), r.adjustedP());
+      o.say("  %-14s %8.4f %10.4f %8.4f %10.5f %9.3g %8s %8s", r.feature(), r.ks(), r.aucSeparation(),
+          r.wasserstein(), r.jensenShannon(), r.ksAsymptoticP(), p(r.rawP()), p(r.adjustedP()));
     }
+  }
+
+  /** A p-value in three digits, or '-' when not computed. */
+  private static String p(double value) {
+    return Double.isNaN(value) ? "-" : String.format(java.util.Locale.ROOT, "%.3g", value);
   }
 }

@@ -15,8 +15,11 @@ import java.util.List;
  *   <li>{@code aucSeparation}: |AUC − 0.5| of the weighted ROC curve (0 when the feature does not separate);</li>
  *   <li>{@code wasserstein}: Wasserstein-1 distance in units of the reference's weighted standard deviation;</li>
  *   <li>{@code jensenShannon}: binned Jensen–Shannon divergence (nats), bins from reference quantiles;</li>
- *   <li>{@code rawP}, {@code adjustedP}: permutation p-values of D, (k + 1)/(B + 1), raw and maxT-adjusted
- *   (NaN when no permutations were asked for).</li>
+ *   <li>{@code rawP}, {@code adjustedP}: resampling p-values of D, (k + 1)/(B + 1), raw and maxT-adjusted: a
+ *   permutation test of the pooled events when all reference weights are equal, else B null draws from the
+ *   weighted reference ({@link ReferenceDrawTest}); NaN when no resampling was asked for, or when the weights
+ *   differ and the reference has fewer than twice as many events of non-zero weight as the observed side (too
+ *   few to draw pseudo-observed samples from).</li>
  * </ul>
  */
 public final class FeatureRanking {
@@ -46,8 +49,8 @@ public final class FeatureRanking {
    * @param observed observed values, {@code observed[f][i]} (weights one)
    * @param reference reference values, {@code reference[f][j]}
    * @param referenceWeights reference weights
-   * @param permutations label permutations for the p-values (0 for none)
-   * @param seed the permutations' seed
+   * @param permutations permutations or null draws for the p-values (0 for none)
+   * @param seed their seed
    */
   public static List<Row> rank(List<String> names, double[][] observed, double[][] reference,
       double[] referenceWeights, int permutations, long seed) {
@@ -60,44 +63,70 @@ public final class FeatureRanking {
     WeightedWasserstein w1 = WeightedWasserstein.withDefaults().with(WeightedWasserstein.Units.REFERENCE_STANDARD_DEVIATION)
         .with(NegativeWeights.ALLOW);
     BinnedJensenShannon js = BinnedJensenShannon.withDefaults().with(NegativeWeights.ALLOW);
-    double[] rawP = new double[nf];
-    double[] adjP = new double[nf];
-    java.util.Arrays.fill(rawP, Double.NaN);
-    java.util.Arrays.fill(adjP, Double.NaN);
-    if (permutations > 0) {
-      int n = observed[0].length + reference[0].length;
-      double[][] pooled = new double[nf][n];
-      double[] weights = new double[n];
-      boolean[] isObserved = new boolean[n];
-      int no = observed[0].length;
-      for (int f = 0; f < nf; f++) {
-        System.arraycopy(observed[f], 0, pooled[f], 0, no);
-        System.arraycopy(reference[f], 0, pooled[f], no, reference[f].length);
-      }
-      java.util.Arrays.fill(weights, 0, no, 1.0);
-      System.arraycopy(referenceWeights, 0, weights, no, referenceWeights.length);
-      java.util.Arrays.fill(isObserved, 0, no, true);
-      MaxTPermutationTest.Result r = MaxTPermutationTest.withDefaults().withPermutations(permutations)
-          .withSeed(seed).testKolmogorovSmirnov(pooled, weights, isObserved,
-              Runtime.getRuntime().availableProcessors());
-      rawP = r.rawPValues();
-      adjP = r.adjustedPValues();
-    }
     double[] ones = new double[observed[0].length];
     java.util.Arrays.fill(ones, 1.0);
-    // Features are independent: computed in parallel, collected in feature order.
-    final double[] raw = rawP;
-    final double[] adj = adjP;
-    // Each feature's two samples are sorted once and shared by the four measures (the same values as
-    // calling each measure's public method, which sorts its own copy).
+    // Features are independent: computed in parallel, collected in feature order. Each feature's two samples are
+    // sorted once and shared by the four measures (the same values as calling each measure's public method, which
+    // sorts its own copy).
     List<Row> rows = new ArrayList<>(java.util.stream.IntStream.range(0, nf).parallel().mapToObj(f -> {
       WeightedSample a = WeightedSample.of("observed", observed[f], ones, NegativeWeights.ALLOW);
       WeightedSample b = WeightedSample.of("reference", reference[f], referenceWeights, NegativeWeights.ALLOW);
       var k = ks.test(a, b);
       return new Row(names.get(f), k.statistic(), k.pValue(), WeightedRocAuc.separation(a, b),
-          w1.statistic(a, b), js.statistic(a, b), raw[f], adj[f]);
+          w1.statistic(a, b), js.statistic(a, b), Double.NaN, Double.NaN);
     }).toList());
+    if (permutations > 0) {
+      MaxTPermutationTest.Result r = nullTest(rows, observed, reference, referenceWeights, permutations, seed);
+      if (r != null) {
+        for (int f = 0; f < nf; f++) {
+          Row x = rows.get(f);
+          rows.set(f, new Row(x.feature(), x.ks(), x.ksAsymptoticP(), x.aucSeparation(), x.wasserstein(),
+              x.jensenShannon(), r.rawPValues()[f], r.adjustedPValues()[f]));
+        }
+      }
+    }
     rows.sort(Comparator.comparingDouble(Row::ks).reversed());
     return rows;
+  }
+
+  /**
+   * The p-values of the KS distances: a permutation test of the pooled events when every reference event has the
+   * same weight (then the weighted distance is the unweighted one and relabelling is exact), else null draws from
+   * the reference ({@link ReferenceDrawTest}) when it has at least twice as many events as the observed side; null
+   * (no p-values) otherwise.
+   */
+  private static MaxTPermutationTest.Result nullTest(List<Row> rows, double[][] observed, double[][] reference,
+      double[] referenceWeights, int permutations, long seed) {
+    int nf = rows.size();
+    int no = observed[0].length;
+    int nr = reference[0].length;
+    boolean equal = nr > 0 && referenceWeights[0] > 0;
+    for (int j = 1; j < nr && equal; j++) {
+      equal = referenceWeights[j] == referenceWeights[0];
+    }
+    if (equal) {
+      int n = no + nr;
+      double[][] pooled = new double[nf][n];
+      boolean[] isObserved = new boolean[n];
+      for (int f = 0; f < nf; f++) {
+        System.arraycopy(observed[f], 0, pooled[f], 0, no);
+        System.arraycopy(reference[f], 0, pooled[f], no, nr);
+      }
+      java.util.Arrays.fill(isObserved, 0, no, true);
+      return MaxTPermutationTest.withDefaults().withPermutations(permutations).withSeed(seed)
+          .testKolmogorovSmirnov(pooled, null, isObserved, Runtime.getRuntime().availableProcessors());
+    }
+    int usable = 0;
+    for (double w : referenceWeights) {
+      usable += w != 0 ? 1 : 0;
+    }
+    if (2L * no > usable) {
+      return null;
+    }
+    double[] d = new double[nf];
+    for (int f = 0; f < nf; f++) {
+      d[f] = rows.get(f).ks();
+    }
+    return ReferenceDrawTest.test(d, reference, referenceWeights, no, permutations, seed);
   }
 }

@@ -22,6 +22,24 @@ interface KsBlock {
    */
   void run(int[] order, double[] sortedWeight, boolean[] runEnd, byte[] packed, double[] a, double[] c, double[] d);
 
+  /**
+   * The distances of eight null draws from a weighted reference (see {@link ReferenceDrawTest}): along the sorted
+   * order, lane j adds {@code t_j = u a_j + v c_j} at the positions drawn in draw j, and
+   * {@code d_j = max over run ends |s_j − C c_j|} with C all v up to the position; that is the pseudo-observed
+   * share {@code a_j Σ u} minus the pseudo-reference share {@code c_j (C − Σ v)}.
+   *
+   * @param order event indices in ascending order of the feature
+   * @param sortedU the pseudo-observed weight u at each sorted position
+   * @param sortedV the pseudo-reference weight v at each sorted position
+   * @param runEnd whether a tie run ends at each position
+   * @param packed bit j of {@code packed[e]}: event e is drawn in draw j
+   * @param a per draw {@code 1/Σ_drawn u}
+   * @param c per draw {@code 1/Σ_not drawn v}
+   * @param d out: per draw the distance (NaN when a or c is)
+   */
+  void runDraws(int[] order, double[] sortedU, double[] sortedV, boolean[] runEnd, byte[] packed, double[] a,
+      double[] c, double[] d);
+
   /** The vector implementation when available, else plain Java. */
   static KsBlock best() {
     return Holder.BEST;

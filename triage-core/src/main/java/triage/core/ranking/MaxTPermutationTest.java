@@ -21,8 +21,10 @@ import org.apache.commons.rng.simple.RandomSource;
  *   <li>ties: a replica counts as at least as extreme when {@code T^(b) >= T (1 - 1e-12) - 1e-300}, so that
  *       rounding differences of equal statistics count as ties (conservative);</li>
  *   <li>weights move with their events under relabeling; the test assumes exchangeability of the pooled events
- *       under the null, which weighted reference events do not strictly satisfy — the p-values are then
- *       approximate;</li>
+ *       under the null, which holds when every event has the same weight. Pooled events of different weights (unit
+ *       observed events and small-weight reference events) are not exchangeable: a relabelled group then mixes
+ *       both and has a far smaller effective size than the real one, and the p-values come out far too large;
+ *       {@link FeatureRanking} uses {@link ReferenceDrawTest} in that case;</li>
  *   <li>a NaN statistic, fewer than one observed or reference event, or mismatched lengths throw
  *       {@link RankingArgumentException}.</li>
  * </ul>

@@ -82,4 +82,132 @@ class FeatureRankingTest {
           row.jensenShannon(), 0.0);
     }
   }
+
+  @Test
+  void weightedReferenceKeepsThePowerOfTheTest() {
+    // 1,000 observed events from N(0.15, 1) against 100,000 reference events from N(0, 1) with small, unequal
+    // weights (0.005 to 0.015): the asymptotic KS p-value is about 1e-3 (effective sizes), so the resampling p-value
+    // must be the smallest attainable, 1/(B + 1). Relabelling the pooled events gave p ≈ 0.94 here, since a
+    // relabelled group mixes unit-weight and small-weight events.
+    SplittableRandom r = new SplittableRandom(8);
+    int no = 1000;
+    int nr = 100_000;
+    double[][] obs = new double[1][no];
+    double[][] ref = new double[1][nr];
+    double[] w = new double[nr];
+    for (int i = 0; i < no; i++) {
+      obs[0][i] = 0.15 + r.nextGaussian();
+    }
+    for (int j = 0; j < nr; j++) {
+      ref[0][j] = r.nextGaussian();
+      w[j] = 0.005 + 0.01 * r.nextDouble();
+    }
+    FeatureRanking.Row row = FeatureRanking.rank(List.of("x"), obs, ref, w, 199, 4).get(0);
+    assertTrue(row.ksAsymptoticP() < 0.01, row.toString());
+    assertEquals(1.0 / 200, row.rawP(), 1e-12, row.toString());
+    assertEquals(1.0 / 200, row.adjustedP(), 1e-12, row.toString());
+  }
+
+  @Test
+  void weightedReferencePValuesAreUniformWithoutSignal() {
+    // Null hypothesis true: observed events from N(0, 1); the reference drawn from N(0, 1.5²) and weighted by the
+    // density ratio, so both describe N(0, 1). 400 seeded datasets, 2 features, B = 99: the raw and adjusted
+    // p-values of feature 0 must be uniform on {1/100, ..., 1}. Tolerance: the share at or below 0.05 and 0.20
+    // within 3.5 binomial standard errors, and the mean within 3.5 standard errors of 0.505.
+    int sets = 400;
+    int no = 80;
+    int nr = 2000;
+    double[] raw = new double[sets];
+    double[] adj = new double[sets];
+    for (int k = 0; k < sets; k++) {
+      SplittableRandom r = new SplittableRandom(1000 + k);
+      double[][] obs = new double[2][no];
+      double[][] ref = new double[2][nr];
+      double[] w = new double[nr];
+      for (int i = 0; i < no; i++) {
+        obs[0][i] = r.nextGaussian();
+        obs[1][i] = r.nextGaussian();
+      }
+      for (int j = 0; j < nr; j++) {
+        double x = 1.5 * r.nextGaussian();
+        ref[0][j] = x;
+        ref[1][j] = r.nextGaussian();
+        // N(x; 0, 1) / N(x; 0, 1.5²) up to a constant
+        w[j] = Math.exp(-0.5 * x * x + 0.5 * x * x / 2.25) / nr;
+      }
+      for (FeatureRanking.Row row : FeatureRanking.rank(List.of("a", "b"), obs, ref, w, 99, k)) {
+        if (row.feature().equals("a")) {
+          raw[k] = row.rawP();
+          adj[k] = row.adjustedP();
+        }
+      }
+    }
+    for (double[] p : new double[][] {raw}) {
+      checkUniform(p);
+    }
+    // the adjusted p-value is never below the raw one, and its share at or below 0.05 at most about 2 × 0.05
+    // (two features)
+    long small = java.util.Arrays.stream(adj).filter(x -> x <= 0.05).count();
+    assertTrue(small <= 0.10 * sets + 3.5 * Math.sqrt(0.10 * 0.90 * sets), "adjusted p <= 0.05: " + small);
+    for (int k = 0; k < sets; k++) {
+      assertTrue(adj[k] >= raw[k]);
+    }
+  }
+
+  private static void checkUniform(double[] p) {
+    int n = p.length;
+    for (double level : new double[] {0.05, 0.20}) {
+      long below = java.util.Arrays.stream(p).filter(x -> x <= level + 1e-12).count();
+      double se = Math.sqrt(level * (1 - level) / n);
+      assertEquals(level, below / (double) n, 3.5 * se, "share of p <= " + level);
+    }
+    double mean = java.util.Arrays.stream(p).average().orElseThrow();
+    // p uniform on {1/100, ..., 1}: mean 0.505, standard deviation about 0.2887
+    assertEquals(0.505, mean, 3.5 * 0.2887 / Math.sqrt(n));
+  }
+
+  @Test
+  void equalReferenceWeightsUseTheExactPermutationTest() {
+    // all reference weights equal: the weighted distance is the unweighted one, and the p-values are those of the
+    // pooled permutation test with unit weights
+    SplittableRandom r = new SplittableRandom(2);
+    int no = 50;
+    int nr = 400;
+    double[][] obs = new double[2][no];
+    double[][] ref = new double[2][nr];
+    double[] w = new double[nr];
+    for (int i = 0; i < no; i++) {
+      obs[0][i] = 0.3 + r.nextGaussian();
+      obs[1][i] = r.nextGaussian();
+    }
+    for (int j = 0; j < nr; j++) {
+      ref[0][j] = r.nextGaussian();
+      ref[1][j] = r.nextGaussian();
+      w[j] = 0.125;
+    }
+    List<FeatureRanking.Row> rows = FeatureRanking.rank(List.of("a", "b"), obs, ref, w, 99, 6);
+    double[][] pooled = new double[2][no + nr];
+    boolean[] isObs = new boolean[no + nr];
+    for (int f = 0; f < 2; f++) {
+      System.arraycopy(obs[f], 0, pooled[f], 0, no);
+      System.arraycopy(ref[f], 0, pooled[f], no, nr);
+    }
+    java.util.Arrays.fill(isObs, 0, no, true);
+    MaxTPermutationTest.Result expected = MaxTPermutationTest.withDefaults().withPermutations(99).withSeed(6)
+        .testKolmogorovSmirnov(pooled, null, isObs, 1);
+    for (FeatureRanking.Row row : rows) {
+      int f = row.feature().equals("a") ? 0 : 1;
+      assertEquals(expected.rawPValues()[f], row.rawP(), 0.0);
+      assertEquals(expected.adjustedPValues()[f], row.adjustedP(), 0.0);
+    }
+  }
+
+  @Test
+  void tooSmallAWeightedReferenceGivesNoResamplingPValue() {
+    double[][] obs = {{0.1, 0.2, 0.3}};
+    double[][] ref = {{0.0, 0.5, 1.0, 1.5, 2.0}};
+    double[] w = {1, 2, 1, 2, 1};
+    FeatureRanking.Row row = FeatureRanking.rank(List.of("x"), obs, ref, w, 19, 1).get(0);
+    assertTrue(Double.isNaN(row.rawP()) && Double.isNaN(row.adjustedP()), row.toString());
+  }
 }

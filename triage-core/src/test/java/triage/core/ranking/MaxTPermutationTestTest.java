@@ -177,6 +177,39 @@ class MaxTPermutationTestTest {
     System.err.println("KS inner loop in use: " + KsBlock.best().getClass().getSimpleName());
   }
 
+  /** The same for the inner loop of the null draws from a weighted reference (negative weights included). */
+  @Test
+  void theVectorDrawLoopIsBitIdenticalToThePlainOne() {
+    UniformRandomProvider r = RandomSource.XO_RO_SHI_RO_128_PP.create(11L);
+    int n = 5000;
+    int[] order = new int[n];
+    double[] u = new double[n];
+    double[] v = new double[n];
+    boolean[] runEnd = new boolean[n];
+    byte[] packed = new byte[n];
+    for (int p = 0; p < n; p++) {
+      order[p] = (p * 7919) % n;
+      u[p] = p % 97 == 0 ? -1 : 1;
+      v[p] = u[p] * (0.05 + r.nextDouble());
+      runEnd[p] = r.nextDouble() < 0.9 || p == n - 1;
+      packed[p] = r.nextDouble() < 0.5 ? 0 : (byte) r.nextInt(256);
+    }
+    double[] a = new double[8];
+    double[] c = new double[8];
+    for (int j = 0; j < 8; j++) {
+      a[j] = 1 / (1200 + 10 * r.nextDouble());
+      c[j] = 1 / (1500 + 10 * r.nextDouble());
+    }
+    double[] scalar = new double[8];
+    double[] best = new double[8];
+    KsBlock.scalar().runDraws(order, u, v, runEnd, packed, a, c, scalar);
+    KsBlock.best().runDraws(order, u, v, runEnd, packed, a, c, best);
+    for (int j = 0; j < 8; j++) {
+      assertEquals(Double.doubleToRawLongBits(scalar[j]), Double.doubleToRawLongBits(best[j]), "lane " + j);
+      assertTrue(scalar[j] > 0);
+    }
+  }
+
   /** Non-finite weights are refused; relabelings without a positive group weight count as extreme, not as absent. */
   @Test
   void theFastPathRefusesBadWeightsAndCountsUndefinedRelabelingsAsExtreme() {
