@@ -116,7 +116,7 @@ public final class FollowupCommand implements Callable<Integer> {
     RegionApplier.Yield b = RegionApplier.apply(region, follow, refs.get(0), read);
     Region.Discovery d = region.discovery();
     FollowUp f = FollowUp.compute(n.events(), b.sumOfWeights(), Math.sqrt(b.sumOfSquaredWeights()), b.variations(),
-        d.observed(), d.expected());
+        d.observed(), d.expected(), d.expectedStatError());
     o.say("region '%s' (%s)", region.name(), region.where());
     if (overlap > 0) {
       o.say("WARNING: %d observed ids overlap the discovery sample; --allow-overlap was given", overlap);

@@ -19,8 +19,12 @@ import triage.core.inference.Significance;
  *   <li>the 95% CL upper limit on the signal count by CLs (Read, J. Phys. G 28 (2002) 2693), with the
  *   background uncertainty averaged over a truncated Gaussian;</li>
  *   <li>compatibility with the discovery: the discovery excess scaled by the ratio of expected yields,
- *   s_pred = (n_d − b_d)·b/b_d, compared with n − b as z = (n − b − s_pred)/√(b + s_pred + σ_b²) (Gaussian
- *   approximation, stated as such);</li>
+ *   s_pred = (n_d − b_d)·b/b_d, compared with n − b as z = (n − b − s_pred)/σ_z with, to first order in the
+ *   independent fluctuations of n, b (MC statistical error σ_stat), n_d and b_d (σ_d),
+ *   σ_z² = (b + s_pred) + (n_d/b_d)² σ_stat² + (b/b_d)² n_d + (b n_d/b_d²)² σ_d² (the numerator is
+ *   n − n_d·b/b_d, so b enters with the factor n_d/b_d). A systematic variation that moves b and b_d by the same
+ *   relative amount cancels in n − n_d·b/b_d, so σ_syst is left out. A Gaussian approximation, stated as
+ *   such;</li>
  *   <li>growth for 5σ: the factor k by which the follow-up sample would have to grow (n, b, σ_stat scale with k,
  *   relative systematics stay) for the median Asimov significance of s_pred·k to reach 5.</li>
  * </ul>
@@ -52,9 +56,10 @@ public record FollowUp(long observed, double expected, double statError, double 
    * @param variations per variation {b_up, b_down}
    * @param discoveryObserved n_d
    * @param discoveryExpected b_d
+   * @param discoveryStatError σ_d, the MC statistical error √Σw² of b_d
    */
   public static FollowUp compute(long n, double b, double statError, Map<String, double[]> variations,
-      long discoveryObserved, double discoveryExpected) {
+      long discoveryObserved, double discoveryExpected, double discoveryStatError) {
     double syst2 = 0;
     for (double[] v : variations.values()) {
       double d = Math.max(Math.abs(v[0] - b), Math.abs(v[1] - b));
@@ -78,10 +83,24 @@ public record FollowUp(long observed, double expected, double statError, double 
         .upperLimit((int) Math.min(n, Integer.MAX_VALUE), b, sigma).upperLimit() : Double.NaN;
     double sPred = discoveryExpected > 0 ? (discoveryObserved - discoveryExpected) * b / discoveryExpected
         : Double.NaN;
-    double compat = (n - b - sPred) / Math.sqrt(b + Math.max(0, sPred) + sigma * sigma);
+    double compat = compatibilityZ(n, b, statError, discoveryObserved, discoveryExpected, discoveryStatError);
     double growth = growthFor5Sigma(sPred, b, statError, syst);
     return new FollowUp(n, b, statError, syst, sigma, new LinkedHashMap<>(variations), zBi, pBi, zA, limit, sPred,
         compat, growth);
+  }
+
+  /** The compatibility z of the follow-up with the discovery (see the class comment); NaN when b_d ≤ 0. */
+  static double compatibilityZ(long n, double b, double statError, long discoveryObserved, double discoveryExpected,
+      double discoveryStatError) {
+    if (!(discoveryExpected > 0)) {
+      return Double.NaN;
+    }
+    double ratio = discoveryObserved / discoveryExpected;
+    double scale = b / discoveryExpected;
+    double sPred = (discoveryObserved - discoveryExpected) * scale;
+    double variance = b + Math.max(0, sPred) + ratio * ratio * statError * statError
+        + scale * scale * discoveryObserved + scale * ratio * scale * ratio * discoveryStatError * discoveryStatError;
+    return (n - b - sPred) / Math.sqrt(variance);
   }
 
   /**

@@ -68,7 +68,7 @@ class RegionBiasTest {
       int nIn = poisson(r, nRef * area);
       double b = 0.1 * nIn;
       double w2 = 0.01 * nIn;
-      FollowUp f = FollowUp.compute(n, b, Math.sqrt(w2), Map.of(), box.observed(), box.expected());
+      FollowUp f = FollowUp.compute(n, b, Math.sqrt(w2), Map.of(), box.observed(), box.expected(), 0);
       fifths[Math.min(4, (int) (f.pBi() * 5))]++;
       sumZ += f.zBi();
     }
