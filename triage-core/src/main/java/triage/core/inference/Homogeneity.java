@@ -2,7 +2,8 @@ package triage.core.inference;
 
 /**
  * Whether observed/expected is the same in every group (runs, detector sectors, triggers): the χ² homogeneity
- * statistic of counts n_i against expected yields b_i known to ±σ_i, with the common ratio r = Σn/Σb fitted.
+ * statistic of counts n_i against expected yields b_i known to ±σ_i, with the common ratio r = Σn/Σb over the
+ * groups with b_i &gt; 0 fitted.
  *
  * <p>Formula: χ² = Σ_i (n_i − r b_i)² / (r b_i + r² σ_i²) over groups with b_i &gt; 0, compared with χ²(k − 1)
  * (one degree of freedom taken by r). The denominator is the Poisson variance of n_i plus the MC variance of
@@ -26,8 +27,11 @@ public record Homogeneity(double statistic, int dof, double pValue) {
     double n = 0;
     double b = 0;
     for (int i = 0; i < observed.length; i++) {
-      n += observed[i];
-      b += expected[i];
+      // r is fitted on the groups that enter the sum (a group with b_i = 0 is left out of both)
+      if (expected[i] > 0) {
+        n += observed[i];
+        b += expected[i];
+      }
     }
     if (!(b > 0)) {
       return new Homogeneity(Double.NaN, 0, Double.NaN);

@@ -182,7 +182,13 @@ public final class WindowScan {
     if (!(x >= g.lo() && x <= g.hi())) {
       return -1;
     }
-    int k = (int) ((x - g.lo()) / (g.hi() - g.lo()) * g.bins());
-    return Math.min(k, g.bins() - 1);
+    int k = Math.min((int) ((x - g.lo()) / (g.hi() - g.lo()) * g.bins()), g.bins() - 1);
+    // The division may round across an edge: the reported edges decide (a value on edge k belongs to bin k).
+    if (k + 1 < g.bins() && x >= g.edge(k + 1)) {
+      k++;
+    } else if (k > 0 && x < g.edge(k)) {
+      k--;
+    }
+    return k;
   }
 }

@@ -20,6 +20,16 @@ class HomogeneityTest {
     assertEquals(2 * Significance.pFromZ(Math.sqrt(10)), h.pValue(), 1e-12);
   }
 
+  @Test
+  void groupsWithoutExpectationStayOutOfTheFittedRatio() {
+    // n = (10, 10, 5), b = (10, 10, 0): the third group is left out, so r = 20/20 = 1 and χ² = 0 with 1 dof
+    // (by hand); fitting r with its 5 events gave r = 1.25 and χ² = 1.
+    Homogeneity h = Homogeneity.of(new long[] {10, 10, 5}, new double[] {10, 10, 0}, new double[] {0, 0, 0});
+    assertEquals(0, h.statistic(), 1e-12);
+    assertEquals(1, h.dof());
+    assertEquals(1, h.pValue(), 1e-12);
+  }
+
   /**
    * Under the null (every group Poisson with mean 1.3·b_i, b_i from 20 to 160), the p-values of 2,000 fixed-seed
    * trials fall in each tenth of [0, 1] with frequency 0.1 ± 0.03 (the binomial 4.5σ band is ±0.030).

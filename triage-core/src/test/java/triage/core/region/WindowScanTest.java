@@ -65,6 +65,33 @@ class WindowScanTest {
     }
   }
 
+  /**
+   * Values exactly on an edge belong to the bin that starts there, as the reported [lo, hi) says: 30 observed
+   * events at 58 on a 0..200 grid of 100 bins (where (58 − 0)/200·100 rounds to 28.999…) are counted in the window
+   * that starts at 58, and the direct count over the reported best window agrees.
+   */
+  @Test
+  void valuesOnAnEdgeFallInTheWindowThatStartsThere() {
+    double[] obs = new double[30];
+    java.util.Arrays.fill(obs, 58.0);
+    double[] ref = new double[2000];
+    double[] w = new double[ref.length];
+    for (int i = 0; i < ref.length; i++) {
+      ref[i] = 0.05 + 0.1 * i;
+      w[i] = 0.01;
+    }
+    WindowScan.Grid g = new WindowScan.Grid(0, 200, 100, 1, 1);
+    WindowScan.Window b = WindowScan.scan(obs, ref, w, g, 1).best();
+    assertEquals(58.0, b.lo(), 0.0);
+    assertEquals(60.0, b.hi(), 0.0);
+    assertEquals(30, b.observed());
+    double e = 0;
+    for (int i = 0; i < ref.length; i++) {
+      e += ref[i] >= b.lo() && ref[i] < b.hi() ? w[i] : 0;
+    }
+    assertEquals(e, b.expected(), 1e-12);
+  }
+
   @Test
   void aGaussianBumpIsFoundWhereItWasPut() {
     SplittableRandom r = new SplittableRandom(3);
