@@ -12,10 +12,12 @@ import triage.core.inference.CountingSignificance;
  *
  * <ul>
  *   <li>Peeling: from the box holding everything, each step considers, for every feature, removing the fraction
- *   α of the box's observed events at the low or at the high end, and keeps the peel giving the highest Z; it stops
- *   when the box would hold fewer than the minimum support (a fraction of all observed events). The best box of
- *   the trajectory is kept.</li>
- *   <li>Pasting: each face of that box is moved out by α of its observed events while that raises Z.</li>
+ *   α of the box's observed events at the low or at the high end, and keeps the peel giving the highest Z; a
+ *   candidate that removes no observed event (ties at the end) or leaves no reference yield is not considered.
+ *   It stops when the box would hold fewer than the minimum support (a fraction of all observed events) or no
+ *   candidate is left. The best box of the trajectory is kept.</li>
+ *   <li>Pasting: of the faces of that box, each moved out by α of its observed events, the one giving the
+ *   highest Z is taken, while that raises Z.</li>
  *   <li>Pruning: the cut whose removal lowers Z least is dropped while the loss is below the tolerance, and
  *   always while there are more cuts than allowed.</li>
  * </ul>
@@ -79,10 +81,13 @@ public final class Prim {
     // no instance
   }
 
-  /** Z_Bi of n against b ± √w2 (NaN-safe: 0 when there is no reference yield). */
+  /**
+   * Z_Bi of n against b ± √w2; −∞ when there is no reference yield, so that such a box is never preferred (with
+   * no expectation a significance is not defined, and an infinite one would win every comparison).
+   */
   static double z(long n, double b, double w2) {
     if (!(b > 0) || !(w2 > 0)) {
-      return n > 0 ? Double.POSITIVE_INFINITY : 0;
+      return Double.NEGATIVE_INFINITY;
     }
     return CountingSignificance.zBiFromBackground(n, b, Math.sqrt(w2)).z();
   }
@@ -143,6 +148,10 @@ public final class Prim {
               nk++;
             }
           }
+          if (nk == n) {
+            // ties at the end: this peel removes no observed event and would end the peeling
+            continue;
+          }
           double bk = 0;
           double b2 = 0;
           for (int j : rIdx) {
@@ -174,9 +183,6 @@ public final class Prim {
       final boolean ll = stepLow;
       oIdx = Arrays.stream(oIdx).filter(i -> ll ? obs[kk][i] >= bb : obs[kk][i] <= bb).toArray();
       rIdx = Arrays.stream(rIdx).filter(j -> ll ? ref[kk][j] >= bb : ref[kk][j] <= bb).toArray();
-      if (oIdx.length == n) {
-        break;
-      }
       peels++;
       if (stepZ > bestZ) {
         bestZ = stepZ;
@@ -186,14 +192,17 @@ public final class Prim {
     }
     lo = bestLo;
     hi = bestHi;
-    // Pasting: move a face out by α of the box's observed events while Z rises.
+    // Pasting: move out the face that raises Z most, by α of the box's observed events, while Z rises.
     boolean improved = true;
     while (improved) {
       improved = false;
       long n = count(obs, lo, hi);
       long add = Math.max(1, (long) Math.floor(s.alpha() * n));
       double current = z(n, sum(w, ref, lo, hi), sum2(w, ref, lo, hi));
-      for (int k = 0; k < d && !improved; k++) {
+      double bestPaste = current + 1e-12;
+      double[] pasteLo = null;
+      double[] pasteHi = null;
+      for (int k = 0; k < d; k++) {
         for (boolean low : new boolean[] {true, false}) {
           double[] outside = outside(obs, k, lo, hi, low);
           if (outside.length == 0) {
@@ -210,13 +219,17 @@ public final class Prim {
             h[k] = bound;
           }
           double zk = z(count(obs, l, h), sum(w, ref, l, h), sum2(w, ref, l, h));
-          if (zk > current + 1e-12) {
-            lo = l;
-            hi = h;
-            improved = true;
-            break;
+          if (zk > bestPaste) {
+            bestPaste = zk;
+            pasteLo = l;
+            pasteHi = h;
           }
         }
+      }
+      if (pasteLo != null) {
+        lo = pasteLo;
+        hi = pasteHi;
+        improved = true;
       }
     }
     // Pruning.
