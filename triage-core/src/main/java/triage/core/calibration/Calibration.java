@@ -18,7 +18,8 @@ import triage.core.ratio.WeightPolicy;
  * turns the toys' t values into a p-value for the observed t.
  *
  * <p>A toy draws its observed sample from the reference ({@link ToySampler}); the rest of the reference, with its
- * weights renormalised to the same expected count N_exp as in the data fit, is its reference.
+ * weights corrected for the draw (w/(1 − π)) and renormalised to the same expected count N_exp as in the data fit,
+ * is its reference.
  */
 public final class Calibration {
   private Calibration() {
@@ -57,8 +58,8 @@ public final class Calibration {
       long start = System.nanoTime();
       ToySampler.Toy toy = ToySampler.draw(weights, expected, runSeed, k);
       long seed = ToySampler.toySeed(runSeed, k);
-      FitResult fit = fitToy(names, reference, n, d, weights, expected, settings.withSeed(seed), toy.observed(),
-          toy.reference(), new double[0], k);
+      FitResult fit = fitToy(names, reference, n, d, expected, settings.withSeed(seed), toy.observed(),
+          toy.reference(), toy.referenceWeights(), new double[0], k);
       ToyLog.Entry e = new ToyLog.Entry(k, seed, toy.observed().length, fit.testStatistic(), fit.converged(),
           fit.iterations(), (System.nanoTime() - start) / 1e9);
       listener.finished(e);
@@ -121,6 +122,7 @@ public final class Calibration {
     long gauss = ToySampler.toySeed(runSeed ^ SIGNAL_STREAM, -3);
     ToySampler.Toy toy = ToySampler.draw(weights, expected, background, k);
     int[] refRows = toy.reference();
+    double[] refWeights = toy.referenceWeights();
     double[] extra;
     int injected;
     switch (signal) {
@@ -131,11 +133,9 @@ public final class Calibration {
         injected = rows.length;
       }
       case Signal.Bump b -> {
-        double[] sub = new double[refRows.length];
-        for (int i = 0; i < sub.length; i++) {
-          sub[i] = weights[refRows[i]];
-        }
-        ToySampler.Toy split = ToySampler.draw(sub, b.yield(), carriers, k);
+        // The bump's carriers come out of the toy's reference, drawn like a toy from it (its weights already
+        // corrected for the first draw); what is left is weighted once more for this second draw.
+        ToySampler.Toy split = ToySampler.draw(refWeights, b.yield(), carriers, k);
         int[] rows = new int[split.observed().length];
         for (int i = 0; i < rows.length; i++) {
           rows[i] = refRows[split.observed()[i]];
@@ -145,6 +145,7 @@ public final class Calibration {
           rest[i] = refRows[split.reference()[i]];
         }
         refRows = rest;
+        refWeights = split.referenceWeights();
         extra = gather(reference, n, d, rows);
         org.apache.commons.rng.UniformRandomProvider rng =
             org.apache.commons.rng.simple.RandomSource.SPLIT_MIX_64.create(ToySampler.toySeed(gauss, k));
@@ -155,22 +156,23 @@ public final class Calibration {
         injected = rows.length;
       }
     }
-    TrainingData data = toyData(names, reference, n, d, weights, expected, toy.observed(), refRows, extra, k);
+    TrainingData data = toyData(names, reference, n, d, expected, toy.observed(), refRows, refWeights, extra, k);
     return new SignalDraw(data, toy.observed().length, injected);
   }
 
   /**
    * Fits one toy: observed = the rows {@code obsRows} of the reference plus {@code extra} (feature-major, appended
-   * after them), reference = the rows {@code refRows} with their weights renormalised to N_exp.
+   * after them), reference = the rows {@code refRows} with the weights {@code refWeights} renormalised to N_exp.
    */
-  static FitResult fitToy(List<String> names, double[] reference, int n, int d, double[] weights, double expected,
-      FitSettings settings, int[] obsRows, int[] refRows, double[] extra, long k) {
-    return RatioTrainer.fit(toyData(names, reference, n, d, weights, expected, obsRows, refRows, extra, k), settings);
+  static FitResult fitToy(List<String> names, double[] reference, int n, int d, double expected,
+      FitSettings settings, int[] obsRows, int[] refRows, double[] refWeights, double[] extra, long k) {
+    return RatioTrainer.fit(toyData(names, reference, n, d, expected, obsRows, refRows, refWeights, extra, k),
+        settings);
   }
 
   /** The training data of one toy (see {@link #fitToy}). */
-  static TrainingData toyData(List<String> names, double[] reference, int n, int d, double[] weights,
-      double expected, int[] obsRows, int[] refRows, double[] extra, long k) {
+  static TrainingData toyData(List<String> names, double[] reference, int n, int d, double expected,
+      int[] obsRows, int[] refRows, double[] refWeights, double[] extra, long k) {
     int m = d == 0 ? 0 : extra.length / d;
     if (refRows.length == 0 || obsRows.length + m == 0) {
       throw new IllegalStateException("toy " + k + " left an empty sample");
@@ -186,11 +188,7 @@ public final class Calibration {
       obs = both;
     }
     double[] ref = gather(reference, n, d, refRows);
-    double[] w = new double[refRows.length];
-    for (int i = 0; i < w.length; i++) {
-      w[i] = weights[refRows[i]];
-    }
-    return new TrainingData(names, ref, w, obs, WeightPolicy.POSITIVE_ONLY, OptionalDouble.of(expected));
+    return new TrainingData(names, ref, refWeights.clone(), obs, WeightPolicy.POSITIVE_ONLY, OptionalDouble.of(expected));
   }
 
   static double[] gather(double[] featureMajor, int n, int d, int[] rows) {
@@ -253,8 +251,12 @@ public final class Calibration {
     double zPar = ChiSquaredTail.z(observed, parameters);
     String headline;
     if (emp.bound() == EmpiricalPValue.Bound.UPPER_BOUND) {
+      // p < 1/N is the customary statement; it is not a bound at a stated confidence (if p were exactly 1/N, no
+      // toy would reach t_obs in (1 − 1/N)^N ≈ 37% of runs), so the 95% CL bound 1 − 0.05^(1/N) ≈ 3/N goes with it.
+      double p95 = -Math.expm1(Math.log(0.05) / toys.length);
       headline = String.format(java.util.Locale.ROOT, "no toy reached t_obs: p < 1/N = %.3g, Z > %.2f from the %d "
-          + "toys; the χ² figures extrapolate beyond them", emp.pValue(), emp.z(), toys.length);
+          + "toys (at 95%% confidence: p < %.3g, Z > %.2f); the χ² figures extrapolate beyond them", emp.pValue(),
+          emp.z(), toys.length, p95, Significance.zFromP(p95));
       warnings.add(String.format(java.util.Locale.ROOT, "t_obs = %.4g is beyond the largest toy (%.4g): the "
           + "asymptotic p-values are extrapolations", observed, max));
     } else {

@@ -119,8 +119,8 @@ public final class ClipTuning {
       long start = System.nanoTime();
       ToySampler.Toy toy = ToySampler.draw(weights, expected, stream, k);
       long seed = ToySampler.toySeed(stream, k);
-      TrainingData data = Calibration.toyData(names, reference, n, d, weights, expected, toy.observed(),
-          toy.reference(), new double[0], k);
+      TrainingData data = Calibration.toyData(names, reference, n, d, expected, toy.observed(),
+          toy.reference(), toy.referenceWeights(), new double[0], k);
       TuningToy e = fitAtCaps(data, settings.withClip(clip).withSeed(seed), caps, k, toy.observed().length,
           start);
       listener.finished(e);

@@ -73,7 +73,7 @@ public final class ToyLog {
   private static final ObjectMapper MAPPER = new ObjectMapper();
 
   /** The format of toy files. */
-  public static final String FORMAT = "triage-toys/1";
+  public static final String FORMAT = "triage-toys/2";
 
   private ToyLog() {
     // no instance
@@ -141,6 +141,11 @@ public final class ToyLog {
       h = MAPPER.readValue(lines.get(0), Header.class);
     } catch (IOException e) {
       throw new InputException(file, 1, 0, "not a toy file (expected a " + FORMAT + " header)", e);
+    }
+    if (h.format() != null && h.format().startsWith("triage-toys/") && !FORMAT.equals(h.format())) {
+      throw new InputException(file, 1, 0, "written by another triage version (format " + h.format() + ", this one "
+          + "writes " + FORMAT + "; since format 2 toys are drawn with inclusion probabilities proportional to "
+          + "weight): move the file away to calibrate afresh", null);
     }
     if (!FORMAT.equals(h.format()) || !settings.equals(h.settings())) {
       throw new InputException(file, 1, 0, "made with other settings (fingerprint " + h.settings()

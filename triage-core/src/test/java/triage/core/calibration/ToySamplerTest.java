@@ -86,6 +86,41 @@ class ToySamplerTest {
     assertThrows(IllegalArgumentException.class, () -> ToySampler.draw(new double[] {1, -1}, 1, 1, 0));
   }
 
+  /**
+   * Null toys from a reference of two weight classes (90,000 events of weight 0.01 and 10,000 of weight 0.1, so the
+   * heavy class carries 1000/1900 = 0.5263 of the weight; analytic). With N_exp = 1,900 a toy takes about 2% of the
+   * events. Over 200 toys the heavy class's share of the toy events, and its share of the toy reference's corrected
+   * weight, must both be 0.5263 within 0.004 (the per-toy spread of the first is about 0.011, so its mean over 200
+   * toys has a standard error of 0.0008; the second barely fluctuates). Successive sampling gave 0.516 and 0.503.
+   */
+  @Test
+  void toysAreNullSamplesWhenWeightsDiffer() {
+    int light = 90_000;
+    int heavy = 10_000;
+    double[] w = new double[light + heavy];
+    for (int i = 0; i < w.length; i++) {
+      w[i] = i < light ? 0.01 : 0.1;
+    }
+    double expectedShare = 1000.0 / 1900;
+    double obsShare = 0;
+    double refShare = 0;
+    int toys = 200;
+    for (long k = 0; k < toys; k++) {
+      ToySampler.Toy t = ToySampler.draw(w, 1900, 5, k);
+      long h = java.util.Arrays.stream(t.observed()).filter(i -> i >= light).count();
+      obsShare += h / (double) t.observed().length / toys;
+      double all = 0;
+      double hw = 0;
+      for (int j = 0; j < t.reference().length; j++) {
+        all += t.referenceWeights()[j];
+        hw += t.reference()[j] >= light ? t.referenceWeights()[j] : 0;
+      }
+      refShare += hw / all / toys;
+    }
+    assertEquals(expectedShare, obsShare, 0.004);
+    assertEquals(expectedShare, refShare, 0.004);
+  }
+
   @Test
   void logResumesSurvivesATornLineAndRefusesOtherSettings() throws Exception {
     Path f = dir.resolve("toys.jsonl");
