@@ -67,6 +67,15 @@ for n in [1500, 3000, 10000]:
 write("kolmogorov-one-sample-large.csv", ["n", "d", "sf_kstwo", "sf_dmtw"], rows,
       "large n, compared with the Stephens approximation: sf_kstwo = scipy.stats.kstwo.sf(d, n); "
       "sf_dmtw = 1 - scipy.stats._ksstats._kolmogn_DMTW(n, d) (exact)")
+# the far tail (n d^2 above 3.76): twice the exact one-sided probability, scipy.stats.ksone.sf (Smirnov's exact
+# formula), which is also what kstwo.sf returns there; the two-sided correction is below e^(-6 n d^2) relative.
+rows = []
+for n in [10, 50, 100, 140, 500, 2000]:
+    for q in [1e-3, 1e-6, 1e-9, 1e-12]:
+        d = float(stats.kstwo.isf(q, n))
+        rows.append([n, d, 2.0 * float(stats.ksone.sf(d, n)), float(stats.kstwo.sf(d, n))])
+write("kolmogorov-one-sample-tail.csv", ["n", "d", "sf_two_one_sided", "sf_kstwo"], rows,
+      "tail: sf_two_one_sided = 2 * scipy.stats.ksone.sf(d, n); sf_kstwo = scipy.stats.kstwo.sf(d, n)")
 rows = [[lam, float(stats.kstwobign.sf(lam))] for lam in [0.3, 0.5, 0.8, 1.0, 1.17, 1.19, 1.36, 1.63, 2.0, 3.0, 5.0]]
 write("kolmogorov-asymptotic.csv", ["lambda", "sf"], rows, "sf = scipy.stats.kstwobign.sf(lambda)")
 
