@@ -151,6 +151,18 @@ public record Manifest(String format, String indexId, String tool, String create
     return null;
   }
 
+  /**
+   * Why a model version name cannot be used, or null when it can: 1 to 64 letters, digits, '_', '.' or '-', not
+   * starting with '.' or '-', and not {@code external} (the name of a score column read at ingest).
+   */
+  public static String versionNameProblem(String version) {
+    if (version == null || !version.matches("[A-Za-z0-9_][A-Za-z0-9_.-]{0,63}") || version.equals("external")) {
+      return "model version '" + version + "' must be 1-64 letters, digits, '_', '.', '-', start with a letter, "
+          + "digit or '_', and not be 'external'";
+    }
+    return null;
+  }
+
   /** The model with this version, or null. */
   public Model model(String version) {
     for (Model m : models) {

@@ -270,6 +270,17 @@ class EventStoreTest {
           () -> s.sums(Selection.all().and(new Selection.Range("score:m9", 0, 1))));
       assertTrue(e.getMessage().contains("no model version 'm9'"), e.getMessage());
     }
+    // Two stores open on one index (two fits at once): the second one's manifest is stale, but adding a model
+    // starts from the latest commit, so neither model is lost; a version that exists is refused.
+    try (EventStore a = EventStore.open(index); EventStore b = EventStore.open(index)) {
+      a.addScores("m2", scores, null);
+      b.addScores("m3", scores, null);
+      IndexException twice = assertThrows(IndexException.class, () -> b.addScores("m2", scores, null));
+      assertTrue(twice.getMessage().contains("already has a model version 'm2'"), twice.getMessage());
+    }
+    try (EventStore s = EventStore.open(index)) {
+      assertEquals(List.of("m1", "m2", "m3"), s.manifest().models().stream().map(Manifest.Model::version).toList());
+    }
   }
 
   @Test

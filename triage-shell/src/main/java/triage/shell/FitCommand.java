@@ -145,8 +145,16 @@ public final class FitCommand implements Callable<Integer> {
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
     FitSettings settings = settings(clip(o));
+    if (versionName != null && Manifest.versionNameProblem(versionName) != null) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--version-name: "
+          + Manifest.versionNameProblem(versionName));
+    }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
+      if (versionName != null && m.model(versionName) != null) {
+        throw new CommandLine.ParameterException(spec.commandLine(), "--version-name: the index already has a "
+            + "model version '" + versionName + "'; choose another name");
+      }
       String observed = Roles.name(m, Role.OBSERVED);
       String reference = Roles.name(m, Role.REFERENCE);
       List<String> features = m.spec().columns().features();

@@ -40,6 +40,7 @@ import org.apache.lucene.index.IndexWriter;
 import org.apache.lucene.index.IndexWriterConfig;
 import org.apache.lucene.index.LeafReaderContext;
 import org.apache.lucene.index.ReaderUtil;
+import org.apache.lucene.index.SegmentInfos;
 import org.apache.lucene.search.BooleanClause;
 import org.apache.lucene.search.BooleanQuery;
 import org.apache.lucene.search.DocIdSetIterator;
@@ -880,9 +881,9 @@ public final class LuceneEventStore implements EventStore {
   // ---------------------------------------------------------------- scores
 
   private static void checkVersion(String version) {
-    if (version == null || !version.matches("[A-Za-z0-9_.-]{1,64}") || version.equals("external")) {
-      throw new IllegalArgumentException("model version '" + version
-          + "' must be 1-64 letters, digits, '_', '.', '-' (and not 'external')");
+    String problem = Manifest.versionNameProblem(version);
+    if (problem != null) {
+      throw new IllegalArgumentException(problem);
     }
   }
 
@@ -894,27 +895,37 @@ public final class LuceneEventStore implements EventStore {
     if (scoresByRow.length != total) {
       throw new IllegalArgumentException(scoresByRow.length + " scores given for " + total + " events");
     }
-    Path scoreDir = dir.resolve("scores");
-    Files.createDirectories(scoreDir);
-    Path scoreFile = scoreDir.resolve(version + ".f64");
-    ByteBuffer buffer = ByteBuffer.allocate(SCORE_HEADER + 8 * scoresByRow.length).order(ByteOrder.LITTLE_ENDIAN);
-    buffer.putInt(SCORE_MAGIC).putInt(SCORE_FORMAT).putLong(scoresByRow.length);
-    buffer.asDoubleBuffer().put(scoresByRow);
-    byte[] bytes = buffer.array();
-    writeAtomically(scoreFile, bytes);
-    String modelFile = null;
-    if (modelJson != null) {
-      Path models = dir.resolve("models");
-      Files.createDirectories(models);
-      writeAtomically(models.resolve(version + ".json"), modelJson.getBytes(StandardCharsets.UTF_8));
-      modelFile = "models/" + version + ".json";
-    }
-    Manifest updated = manifest.withModel(new Manifest.Model(version, "file", "scores/" + version + ".f64",
-        Fingerprints.sha256(bytes), modelFile, Instant.now().truncatedTo(ChronoUnit.SECONDS).toString()));
     IndexWriterConfig config = new IndexWriterConfig();
     config.setOpenMode(IndexWriterConfig.OpenMode.APPEND);
     config.setCommitOnClose(false);
+    Manifest updated;
+    // Everything below holds the index's write lock, and starts from the latest commit's manifest: another process
+    // may have added a model since this store was opened, and its model must not be lost.
     try (IndexWriter writer = new IndexWriter(directory, config)) {
+      String json = SegmentInfos.readLatestCommit(directory).getUserData().get(Fields.MANIFEST_KEY);
+      Manifest latest = json == null ? manifest : Manifest.fromJson(json);
+      if (latest.model(version) != null) {
+        throw new IndexException(dir, "already has a model version '" + version + "' (added "
+            + latest.model(version).created() + "); choose another version name");
+      }
+      Path scoreDir = dir.resolve("scores");
+      Files.createDirectories(scoreDir);
+      Path scoreFile = scoreDir.resolve(version + ".f64");
+      ByteBuffer buffer = ByteBuffer.allocate(SCORE_HEADER + 8 * scoresByRow.length)
+          .order(ByteOrder.LITTLE_ENDIAN);
+      buffer.putInt(SCORE_MAGIC).putInt(SCORE_FORMAT).putLong(scoresByRow.length);
+      buffer.asDoubleBuffer().put(scoresByRow);
+      byte[] bytes = buffer.array();
+      writeAtomically(scoreFile, bytes);
+      String modelFile = null;
+      if (modelJson != null) {
+        Path models = dir.resolve("models");
+        Files.createDirectories(models);
+        writeAtomically(models.resolve(version + ".json"), modelJson.getBytes(StandardCharsets.UTF_8));
+        modelFile = "models/" + version + ".json";
+      }
+      updated = latest.withModel(new Manifest.Model(version, "file", "scores/" + version + ".f64",
+          Fingerprints.sha256(bytes), modelFile, Instant.now().truncatedTo(ChronoUnit.SECONDS).toString()));
       writer.setLiveCommitData(Map.of(Fields.MANIFEST_KEY, updated.toJson()).entrySet());
       writer.commit();
     } catch (LockObtainFailedException e) {

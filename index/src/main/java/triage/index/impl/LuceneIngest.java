@@ -79,6 +79,7 @@ public final class LuceneIngest {
     }
     Files.createDirectories(dir);
     Path rejectsFile = options.rejectsFile() != null ? options.rejectsFile() : dir.resolve("rejects.csv");
+    Rejects.checkWritable(rejectsFile);
     try (FSDirectory directory = FSDirectory.open(dir)) {
       if (DirectoryReader.indexExists(directory) && !options.replace()) {
         throw new IndexException(dir, "already holds an index; use --replace to overwrite it "
@@ -141,8 +142,9 @@ public final class LuceneIngest {
         LuceneEventStore.writeManifestCopy(dir, manifest);
         LuceneEventStore.removeStaleSideFiles(dir, manifest);
         rejects.close();
-        if (rejected == 0) {
-          Files.deleteIfExists(rejectsFile);
+        if (rejected == 0 && Files.exists(rejectsFile) && Rejects.isRejectsFile(rejectsFile)) {
+          // an earlier ingest's rejects file (checked above): it no longer describes this index
+          Files.delete(rejectsFile);
         }
         return new IngestReport(dir.toString(), indexId, results, read, indexed, rejected,
             rejected == 0 ? null : rejectsFile.toString(), (System.nanoTime() - start) / 1e9);
@@ -471,6 +473,33 @@ public final class LuceneIngest {
     /** The printer, once opened. */
     private CSVPrinter printer;
 
+    /** The header of a rejects file (also how an earlier rejects file is recognised). */
+    static final String[] HEADER = {"sample", "file", "line", "column", "column_name", "problem", "found",
+        "expected", "row"};
+
+    /**
+     * Refuses a rejects path that is a folder or a file that is not an earlier rejects file: an ingest overwrites or
+     * removes only files it wrote (the path could be an input file, or anything else).
+     */
+    static void checkWritable(Path file) throws IOException {
+      if (Files.isDirectory(file)) {
+        throw new InputException(file, "is a folder; the rejects file must be a file path");
+      }
+      if (Files.exists(file) && !isRejectsFile(file)) {
+        throw new InputException(file, "already exists and is not a rejects file written by triage; choose "
+            + "another path for --rejects (triage does not overwrite or remove other files)");
+      }
+    }
+
+    /** Whether a file starts with the rejects header. */
+    static boolean isRejectsFile(Path file) throws IOException {
+      try (var r = Files.newBufferedReader(file, StandardCharsets.UTF_8)) {
+        return String.join(",", HEADER).equals(r.readLine());
+      } catch (java.nio.charset.CharacterCodingException e) {
+        return false;
+      }
+    }
+
     Rejects(Path file, boolean enabled) {
       this.file = file;
       this.enabled = enabled;
@@ -487,8 +516,7 @@ public final class LuceneIngest {
             Files.createDirectories(parent);
           }
           BufferedWriter w = Files.newBufferedWriter(file, StandardCharsets.UTF_8);
-          printer = new CSVPrinter(w, CSVFormat.DEFAULT.builder().setHeader("sample", "file", "line", "column",
-              "column_name", "problem", "found", "expected", "row").get());
+          printer = new CSVPrinter(w, CSVFormat.DEFAULT.builder().setHeader(HEADER).get());
         }
         printer.printRecord(sample, problem.file(), problem.line(), problem.column(),
             problem.columnName() == null ? "" : problem.columnName(), problem.kind().label(),
