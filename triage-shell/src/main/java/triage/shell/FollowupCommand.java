@@ -90,12 +90,22 @@ public final class FollowupCommand implements Callable<Integer> {
       }
       List<SampleSource> chosen = new java.util.ArrayList<>(s.samples(Role.FOLLOWUP_REFERENCE));
       chosen.addAll(s.samples(Role.FOLLOWUP_OBSERVED));
+      if (s.samples(Role.FOLLOWUP_REFERENCE).size() != 1 || s.samples(Role.FOLLOWUP_OBSERVED).size() != 1) {
+        throw new InputException(inputs.specFile, "needs exactly one sample with role followup-reference and one "
+            + "with role followup-observed (found " + s.samples(Role.FOLLOWUP_REFERENCE).size() + " and "
+            + s.samples(Role.FOLLOWUP_OBSERVED).size() + ")");
+      }
       follow = new SampleSpec(SampleSpec.FORMAT, s.columns(), s.variations(), chosen);
     } else {
-      follow = new SampleSpec(SampleSpec.FORMAT, region.columns(), region.variations(), List.of(
-          new SampleSource("followup-reference", Role.FOLLOWUP_REFERENCE, inputs.files.reference.toString(),
-              inputs.files.weight),
-          new SampleSource("followup-observed", Role.FOLLOWUP_OBSERVED, inputs.files.observed.toString(), null)));
+      try {
+        follow = new SampleSpec(SampleSpec.FORMAT, region.columns(), region.variations(), List.of(
+            new SampleSource("followup-reference", Role.FOLLOWUP_REFERENCE, inputs.files.reference.toString(),
+                inputs.files.weight),
+            new SampleSource("followup-observed", Role.FOLLOWUP_OBSERVED, inputs.files.observed.toString(),
+                null)));
+      } catch (IllegalArgumentException e) {
+        throw new CommandLine.ParameterException(spec.commandLine(), e.getMessage());
+      }
     }
     List<SampleSource> refs = follow.samples(Role.FOLLOWUP_REFERENCE);
     List<SampleSource> obs = follow.samples(Role.FOLLOWUP_OBSERVED);

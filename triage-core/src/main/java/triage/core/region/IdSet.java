@@ -24,6 +24,13 @@ public record IdSet(long count, String sha256, String data) {
     if (!Fingerprints.sha256(bytes).equals(sha256)) {
       throw new IllegalArgumentException("the id set's fingerprint does not match its data (was it edited?)");
     }
+    long held = 0;
+    for (byte b : bytes) {
+      held += (b & 0x80) == 0 ? 1 : 0;
+    }
+    if (held != count || (bytes.length > 0 && (bytes[bytes.length - 1] & 0x80) != 0)) {
+      throw new IllegalArgumentException("the id set says " + count + " ids but its data holds " + held);
+    }
     this.count = count;
     this.sha256 = sha256;
     this.data = data;

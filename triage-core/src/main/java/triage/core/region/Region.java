@@ -94,8 +94,61 @@ public record Region(String format, String name, String where, List<Cut> cuts, S
       throw new IllegalArgumentException("region format '" + format + "' is not known to this version (it reads '"
           + FORMAT + "')");
     }
-    if (where == null || columns == null || discovery == null || discoveryIds == null) {
-      throw new IllegalArgumentException("a region needs 'where', 'columns', 'discovery' and 'discoveryIds'");
+    if (name == null || where == null || columns == null || discovery == null || discoveryIds == null) {
+      throw new IllegalArgumentException("a region needs 'name', 'where', 'columns', 'discovery' and "
+          + "'discoveryIds'");
+    }
+    if (cuts != null) {
+      java.util.Set<String> known = new java.util.LinkedHashSet<>(columns.all());
+      if (variations != null) {
+        for (Variation v : variations) {
+          known.add(v.up());
+          known.add(v.down());
+        }
+      }
+      if (model != null) {
+        known.add("score:" + model.version());
+      }
+      for (Cut c : cuts) {
+        if (c == null || !known.contains(c.column())) {
+          throw new IllegalArgumentException("cut on " + (c == null ? "nothing" : "'" + c.column() + "'")
+              + ": not one of the region's columns " + known);
+        }
+        if (c.lo() != null && c.hi() != null && !(c.lo() <= c.hi())) {
+          throw new IllegalArgumentException("cut on '" + c.column() + "' has lo " + c.lo() + " above hi " + c.hi());
+        }
+      }
+    }
+    if (model != null) {
+      checkModel(model, columns);
+    }
+  }
+
+  /**
+   * The frozen model must be the one that was frozen (its SHA-256) and must read the region's feature columns: a
+   * region file edited after freezing must not silently score events another way.
+   */
+  private static void checkModel(Model model, Columns columns) {
+    if (model.json() == null || model.sha256() == null || model.version() == null) {
+      throw new IllegalArgumentException("the frozen model needs 'version', 'sha256' and 'json'");
+    }
+    String sha = triage.core.provenance.Fingerprints.sha256(model.json().getBytes(
+        java.nio.charset.StandardCharsets.UTF_8));
+    if (!sha.equals(model.sha256())) {
+      throw new IllegalArgumentException("the frozen model's SHA-256 does not match its text (was the region file "
+          + "edited after it was frozen?)");
+    }
+    triage.core.ratio.RatioModel m;
+    try {
+      m = triage.core.ratio.RatioModel.fromJson(model.json());
+    } catch (RuntimeException e) {
+      throw new IllegalArgumentException("the frozen model cannot be read: " + e.getMessage());
+    }
+    for (String f : m.featureNames()) {
+      if (!columns.features().contains(f)) {
+        throw new IllegalArgumentException("the frozen model reads feature '" + f + "', which is not among the "
+            + "region's feature columns " + columns.features());
+      }
     }
   }
 

@@ -143,6 +143,9 @@ public final class RegionApplier {
     /** The frozen model, or null. */
     private final RatioModel model;
 
+    /** For each model input, the feature number in the spec (matched by name). */
+    private final int[] modelInputs;
+
     /** The batch. */
     private EventBatch batch;
 
@@ -154,6 +157,15 @@ public final class RegionApplier {
 
     BatchValues(SampleSpec spec, List<String> slots, List<Variation> variations, RatioModel model) {
       this.model = model;
+      List<String> features = spec.columns().features();
+      modelInputs = model == null ? new int[0] : new int[model.featureNames().size()];
+      for (int k = 0; k < modelInputs.length; k++) {
+        modelInputs[k] = features.indexOf(model.featureNames().get(k));
+        if (modelInputs[k] < 0) {
+          throw new IllegalArgumentException("the frozen model reads feature '" + model.featureNames().get(k)
+              + "', which the follow-up samples do not have");
+        }
+      }
       kind = new int[slots.size()];
       index = new int[slots.size()];
       var c = spec.columns();
@@ -195,11 +207,11 @@ public final class RegionApplier {
       batch = b;
       if (model != null) {
         int n = b.size();
-        int nf = b.featureCount();
+        int nf = modelInputs.length;
         double[] x = new double[nf * n];
         for (int e = 0; e < n; e++) {
           for (int k = 0; k < nf; k++) {
-            x[k * n + e] = b.feature(e, k);
+            x[k * n + e] = b.feature(e, modelInputs[k]);
           }
         }
         scores = model.scoreAll(x, n, 1);

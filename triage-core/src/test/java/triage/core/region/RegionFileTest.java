@@ -48,4 +48,39 @@ class RegionFileTest {
     Files.writeString(f, tampered);
     assertTrue(assertThrows(InputException.class, () -> Region.read(f)).getMessage().contains("fingerprint"));
   }
+
+  /** A region file edited after freezing is refused: name, cuts, id count and the frozen model are checked. */
+  @Test
+  void editedRegionFilesAreRefused() throws Exception {
+    Path f = dir.resolve("edited.json");
+    String text = Files.readString(EXAMPLE);
+    Files.writeString(f, text.replace("\"name\" : \"example\",", ""));
+    assertTrue(assertThrows(InputException.class, () -> Region.read(f)).getMessage().contains("'name'"));
+    Files.writeString(f, text.replace("\"count\" : 40,", "\"count\" : 5,"));
+    assertTrue(assertThrows(InputException.class, () -> Region.read(f)).getMessage().contains("says 5 ids"));
+    Files.writeString(f, text.replace("\"hi\" : null", "\"hi\" : 0.1"));
+    assertTrue(assertThrows(InputException.class, () -> Region.read(f)).getMessage().contains("above hi"));
+
+    // a score region: the model must match its SHA-256 and read the region's features
+    Region r = Region.read(EXAMPLE);
+    triage.core.ratio.TrainingData data = triage.core.ratio.TrainingData.of(java.util.List.of("m"),
+        new double[] {0.1, 0.5, 0.9, 0.3}, new double[] {1, 1, 1, 1}, new double[] {0.8, 0.7});
+    String json = triage.core.ratio.RatioTrainer.fit(data, triage.core.ratio.FitSettings.defaults()
+        .withHiddenWidths(java.util.List.of(2)).withThreads(1)
+        .withStoppingRule(triage.core.ratio.StoppingRule.defaults().withMaxIterations(2))).model().toJson();
+    String sha = triage.core.provenance.Fingerprints.sha256(json.getBytes(java.nio.charset.StandardCharsets.UTF_8));
+    Region scored = new Region(r.format(), r.name(), r.where(), r.cuts(), r.residual(), r.columns(), r.variations(),
+        new Region.Model("m1", sha, json), r.discovery(), r.provenance(), r.discoveryIds(), r.cautions());
+    scored.write(f);
+    assertEquals(sha, Region.read(f).model().sha256());
+    Files.writeString(f, Files.readString(f).replace(sha, "0".repeat(64)));
+    assertTrue(assertThrows(InputException.class, () -> Region.read(f)).getMessage().contains("SHA-256"));
+    String renamed = json.replaceFirst("\"featureNames\"\\s*:\\s*\\[\\s*\"m\"", "\"featureNames\":[\"zzz\"");
+    assertTrue(!renamed.equals(json), "the model document lists its feature names");
+    String sha2 = triage.core.provenance.Fingerprints.sha256(renamed.getBytes(
+        java.nio.charset.StandardCharsets.UTF_8));
+    assertTrue(assertThrows(IllegalArgumentException.class, () -> new Region(r.format(), r.name(), r.where(),
+        r.cuts(), r.residual(), r.columns(), r.variations(), new Region.Model("m1", sha2, renamed), r.discovery(),
+        r.provenance(), r.discoveryIds(), r.cautions())).getMessage().contains("'zzz'"));
+  }
 }
