@@ -200,8 +200,8 @@ public final class CalibrateCommand implements Callable<Integer> {
     RatioModel model = ModelFiles.load(index, mm);
     FitSettings settings = model.training().settings();
     if (threads != null) {
-      if (threads < 1) {
-        throw usage("--threads must be ≥ 1");
+      if (threads < 1 || threads > 1024) {
+        throw usage("--threads must be between 1 and 1024");
       }
       settings = settings.withThreads(threads);
     }

@@ -89,6 +89,7 @@ public final class DemoCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     o = new Output(spec, json);
+    Output.prepareFolder(out);
     human = json ? spec.commandLine().getErr() : spec.commandLine().getOut();
     err = spec.commandLine().getErr();
     if (toys < 0 || permutations < 0 || maxIterations < 1) {

@@ -103,11 +103,19 @@ public final class DeriveCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    if (topFeatures < 1) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--top-features must be at least 1");
+    }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       String observed = Roles.name(m, Role.OBSERVED);
       String reference = Roles.name(m, Role.REFERENCE);
       Selection base = where == null ? Selection.all() : store.where(where);
+      // every method needs observed events to shape a region on
+      if (where != null && sums(store, m, where)[0].count() == 0) {
+        throw new InputException(index, "no observed event passes --where \"" + where + "\": nothing to derive "
+            + "a region from");
+      }
       Map<String, Object> result = new LinkedHashMap<>();
       result.put("command", "derive");
       result.put("tool", "triage " + ToolVersion.get());

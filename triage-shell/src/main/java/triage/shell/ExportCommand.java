@@ -57,6 +57,7 @@ public final class ExportCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    Output.prepareFile(out);
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       Manifest.Sample facts = m.sample(sample);

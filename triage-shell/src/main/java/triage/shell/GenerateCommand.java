@@ -48,6 +48,7 @@ public final class GenerateCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    Output.prepareFolder(out);
     DemoScenario.Settings s = size == Size.small ? DemoScenario.Settings.small() : DemoScenario.Settings.standard();
     if (seed != null) {
       s = new DemoScenario.Settings(seed, s.referenceEvents(), s.expectedBackground(), s.signalEvents(),

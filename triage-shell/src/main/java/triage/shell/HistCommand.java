@@ -70,6 +70,8 @@ public final class HistCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    Output.prepareFile(png);
+    Output.prepareFile(svg);
     if (bins < 1 || bins > 10_000) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--bins must be between 1 and 10000");
     }
@@ -106,8 +108,9 @@ public final class HistCommand implements Callable<Integer> {
         }
         hi = Math.nextUp(hi);
       }
-      if (!(lo < hi)) {
-        throw new CommandLine.ParameterException(spec.commandLine(), "--range needs LO < HI");
+      if (!(lo < hi) || !Double.isFinite(lo) || !Double.isFinite(hi) || !Double.isFinite(hi - lo)) {
+        throw new CommandLine.ParameterException(spec.commandLine(), "--range needs finite LO < HI (and HI − LO "
+            + "finite); the data's own range is " + (range == null ? "[" + lo + ", " + hi + ")" : "not used"));
       }
       List<Histogram> h = store.histogram(selection, column, bins, lo, hi);
       Histogram ho = h.get(obs);

@@ -140,8 +140,11 @@ public final class IngestCommand implements Callable<Integer> {
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
     SampleSpec sampleSpec = inputs.specFile != null ? SampleSpec.read(inputs.specFile) : fromFlags(inputs.flags);
-    if (threads < 1) {
-      throw new CommandLine.ParameterException(spec.commandLine(), "--threads must be at least 1");
+    if (threads < 1 || threads > 1024) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--threads must be between 1 and 1024");
+    }
+    if (index.toString().isBlank()) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--index needs a folder name");
     }
     ReadOptions read = ReadOptions.strict().with(onBadRow)
         .with(allowNegativeWeights ? WeightPolicy.ANY_FINITE : WeightPolicy.POSITIVE);

@@ -78,6 +78,8 @@ public final class MapCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    Output.prepareFile(png);
+    Output.prepareFile(svg);
     if (bins < 1 || bins > 200) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--bins must be between 1 and 200");
     }

@@ -145,4 +145,32 @@ public final class Output {
     }
     out.flush();
   }
+
+  /**
+   * Checks a file the command will write before any work is done: a folder is refused, and missing parent folders
+   * are made (as {@code calibrate --plot} does). Null (option not given) passes.
+   */
+  static void prepareFile(java.nio.file.Path file) throws java.io.IOException {
+    if (file == null) {
+      return;
+    }
+    if (java.nio.file.Files.isDirectory(file)) {
+      throw new triage.core.sample.InputException(file, "is a folder; expected the name of a file to write");
+    }
+    java.nio.file.Path parent = file.toAbsolutePath().getParent();
+    if (parent != null) {
+      if (java.nio.file.Files.exists(parent) && !java.nio.file.Files.isDirectory(parent)) {
+        throw new triage.core.sample.InputException(parent, "is a file, not a folder to write " + file.getFileName()
+            + " into");
+      }
+      java.nio.file.Files.createDirectories(parent);
+    }
+  }
+
+  /** Checks a folder the command will write into: an existing file of that name is refused. */
+  static void prepareFolder(java.nio.file.Path folder) {
+    if (folder != null && java.nio.file.Files.exists(folder) && !java.nio.file.Files.isDirectory(folder)) {
+      throw new triage.core.sample.InputException(folder, "is a file, not a folder to write into");
+    }
+  }
 }

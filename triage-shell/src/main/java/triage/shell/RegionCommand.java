@@ -58,6 +58,7 @@ public final class RegionCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    Output.prepareFile(out);
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       Selection selection = store.where(where);

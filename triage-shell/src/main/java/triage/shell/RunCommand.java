@@ -39,10 +39,15 @@ public final class RunCommand implements Callable<Integer> {
   @Override
   public Integer call() throws IOException {
     List<String> lines;
+    if (Files.isDirectory(script)) {
+      throw new InputException(script, "is a folder, not a script");
+    }
     try {
       lines = Files.readAllLines(script);
     } catch (NoSuchFileException e) {
       throw new InputException(script, "script not found");
+    } catch (java.nio.charset.CharacterCodingException e) {
+      throw new InputException(script, "is not a text file (not UTF-8); expected one console command per line");
     }
     Session session = new Session(index);
     DefaultParser parser = new DefaultParser();

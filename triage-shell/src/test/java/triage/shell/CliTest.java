@@ -124,6 +124,68 @@ class CliTest {
     assertTrue(rejects.contains("observed") && rejects.contains(",3,3,m,not-a-number,abc,"), rejects);
   }
 
+  /** --rejects never overwrites or removes a file it did not write (an input file, say), nor a folder. */
+  @Test
+  void theRejectsFileNeverReplacesAnotherFile() throws IOException {
+    writeSamples();
+    Path obs = dir.resolve("obs.csv");
+    String original = Files.readString(obs);
+    Path index = dir.resolve("index");
+    for (String mode : new String[] {"fail", "skip"}) {
+      Run r = run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+          "--observed", obs.toString(), "--features", "m,pt", "--weight", "w", "--replace", "--on-bad-row", mode,
+          "--rejects", obs.toString());
+      assertEquals(ExitCodes.INPUT, r.code(), r.err());
+      assertTrue(r.err().contains("is not a rejects file written by triage"), r.err());
+      assertEquals(original, Files.readString(obs));
+    }
+    Run folder = run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", obs.toString(), "--features", "m,pt", "--weight", "w", "--rejects", dir.toString());
+    assertEquals(ExitCodes.INPUT, folder.code(), folder.err());
+    assertTrue(Files.isDirectory(dir));
+    // its own earlier rejects file is reused
+    Path rejects = dir.resolve("rej.csv");
+    Files.writeString(obs, "event,run,m,pt\n10,5,101,21\n11,6,abc,22\n");
+    for (int i = 0; i < 2; i++) {
+      Run r = run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+          "--observed", obs.toString(), "--features", "m,pt", "--weight", "w", "--replace", "--on-bad-row", "skip",
+          "--rejects", rejects.toString());
+      assertEquals(0, r.code(), r.err());
+      assertTrue(Files.readString(rejects).contains(",abc,"));
+    }
+  }
+
+  /** Output paths that are folders, and other slips, get a message and exit 2 or 3, never a trace. */
+  @Test
+  void badPathsAndOptionsAreRefusedWithoutATrace() throws IOException {
+    Path index = ingestSamples();
+    Path afile = dir.resolve("afile");
+    Files.writeString(afile, "x");
+    String[][] cases = {
+        {"export", "--index", index.toString(), "--sample", "observed", "--out", dir.toString()},
+        {"region", "--index", index.toString(), "--where", "m > 0", "--out", dir.toString()},
+        {"hist", "--index", index.toString(), "--column", "m", "--png", dir.toString()},
+        {"generate", "--out", afile.toString(), "--size", "small"},
+        {"hist", "--index", index.toString(), "--column", "m", "--range", "0:Infinity"},
+        {"derive", "--index", index.toString(), "--top-features", "0"},
+        {"derive", "--index", index.toString(), "--where", "m > 1e9"},
+        {"fit", "--index", index.toString(), "--layers", "100000,100000"},
+        {"ingest", "--index", "", "--reference", dir.resolve("ref.csv").toString(), "--observed",
+            dir.resolve("obs.csv").toString(), "--features", "m", "--weight", "w"},
+        {"run", "--index", index.toString(), dir.toString()},
+    };
+    for (String[] c : cases) {
+      Run r = run(c);
+      assertTrue(r.code() == ExitCodes.USAGE || r.code() == ExitCodes.INPUT, String.join(" ", c) + ": " + r.err());
+      assertFalse(r.err().contains("triage: internal error") || r.err().contains("\tat triage.") || r.err().contains("\tat java."), String.join(" ", c) + ": "
+          + r.err());
+    }
+    // hist writes into a folder that does not exist yet
+    Path png = dir.resolve("new/h.png");
+    assertEquals(0, run("hist", "--index", index.toString(), "--column", "m", "--png", png.toString()).code());
+    assertTrue(Files.exists(png));
+  }
+
   @Test
   void selectReportsObservedExpectedAndLocalSignificance() throws IOException {
     Path index = ingestSamples();
@@ -177,6 +239,28 @@ class CliTest {
     assertEquals(0, rank.code(), rank.err());
     assertTrue(JSON.readTree(rank.out()).get("attribution").get("m").asDouble() > 0, rank.out());
     assertTrue(Files.exists(index.resolve("models/m1.json")));
+    // A version name that exists, or cannot be a file name, is refused before any fitting.
+    for (String name : new String[] {"m1", "a/b", "..", "external"}) {
+      Run again = run("fit", "--index", index.toString(), "--layers", "2", "--version-name", name);
+      assertEquals(ExitCodes.USAGE, again.code(), again.err());
+      assertFalse(again.err().contains("fitting"), again.err());
+    }
+    // A region file whose frozen model was edited is refused.
+    Path region = dir.resolve("scored.json");
+    assertEquals(0, run("region", "--index", index.toString(), "--where", "score:m1 > 0", "--out",
+        region.toString()).code());
+    String frozen = Files.readString(region);
+    Files.writeString(region, frozen.replaceFirst("(\"sha256\" : \")[0-9a-f]{64}", "$1" + "0".repeat(64)));
+    Run edited = run("followup", "--region", region.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--weight", "w", "--observed", dir.resolve("obs.csv").toString(), "--allow-overlap");
+    assertEquals(ExitCodes.INPUT, edited.code(), edited.err());
+    assertTrue(edited.err().contains("SHA-256"), edited.err());
+    // A damaged model file in the index is an input error, not a crash.
+    Files.writeString(index.resolve("models/m1.json"), "{broken");
+    Run damaged = run("region", "--index", index.toString(), "--where", "score:m1 > 0", "--out",
+        dir.resolve("r2.json").toString());
+    assertEquals(ExitCodes.INPUT, damaged.code(), damaged.err());
+    assertTrue(damaged.err().contains("is damaged"), damaged.err());
     // The one-pass threshold scan gives what a selection at each threshold gives.
     Run scan = run("scan", "--index", index.toString(), "--steps", "7", "--json");
     assertEquals(0, scan.code(), scan.err());

@@ -91,6 +91,8 @@ public final class ToyLog {
     String first;
     try (var r = Files.newBufferedReader(file, StandardCharsets.UTF_8)) {
       first = r.readLine();
+    } catch (java.nio.charset.CharacterCodingException e) {
+      throw new InputException(file, 1, 0, "not a toy file (not UTF-8 text; expected a " + FORMAT + " header)", null);
     }
     if (first == null) {
       throw new InputException(file, 1, 0, "empty toy file (expected a " + FORMAT + " header)", null);
@@ -132,7 +134,12 @@ public final class ToyLog {
     if (!Files.exists(file)) {
       return out;
     }
-    List<String> lines = Files.readAllLines(file, StandardCharsets.UTF_8);
+    List<String> lines;
+    try {
+      lines = Files.readAllLines(file, StandardCharsets.UTF_8);
+    } catch (java.nio.charset.CharacterCodingException e) {
+      throw new InputException(file, 1, 0, "not a toy file (not UTF-8 text; expected a " + FORMAT + " header)", null);
+    }
     if (lines.isEmpty()) {
       return out;
     }

@@ -27,12 +27,26 @@ public record FitSettings(List<Integer> hiddenWidths, Activation activation, Los
              StoppingRule stoppingRule, int restarts, double adamLearningRate,
              int adamEpochs, int lbfgsMemory, KernelChoice kernel, int logCapacity) {
 
+  /** Most hidden layers. */
+  public static final int MAX_LAYERS = 32;
+
+  /** Widest hidden layer. */
+  public static final int MAX_WIDTH = 4096;
+
+  /** Most threads. */
+  public static final int MAX_THREADS = 1024;
+
   /** Validates every field. */
   public FitSettings {
     hiddenWidths = List.copyOf(hiddenWidths);
+    // Bounds far above any useful network, so that a typing slip gets a message instead of exhausting memory.
+    if (hiddenWidths.size() > MAX_LAYERS) {
+      throw new IllegalArgumentException("at most " + MAX_LAYERS + " hidden layers: " + hiddenWidths);
+    }
     for (int w : hiddenWidths) {
-      if (w < 1) {
-        throw new IllegalArgumentException("hidden widths must be >= 1: " + hiddenWidths);
+      if (w < 1 || w > MAX_WIDTH) {
+        throw new IllegalArgumentException("hidden widths must be between 1 and " + MAX_WIDTH + ": "
+            + hiddenWidths);
       }
     }
     if (activation == null || loss == null || optimiser == null || stoppingRule == null
@@ -42,8 +56,8 @@ public record FitSettings(List<Integer> hiddenWidths, Activation activation, Los
     if (!(clip > 0) || Double.isInfinite(clip)) {
       throw new IllegalArgumentException("clip must be finite and > 0: " + clip);
     }
-    if (threads < 1) {
-      throw new IllegalArgumentException("threads must be >= 1: " + threads);
+    if (threads < 1 || threads > MAX_THREADS) {
+      throw new IllegalArgumentException("threads must be between 1 and " + MAX_THREADS + ": " + threads);
     }
     if (restarts < 1) {
       throw new IllegalArgumentException("restarts must be >= 1: " + restarts);

@@ -49,6 +49,9 @@ import triage.core.stats.WeightedMoments;
  * A bad row stops the read ({@link BadRowPolicy#FAIL}) or goes to the reject sink ({@link BadRowPolicy#SKIP}).
  */
 public final class EventFileReader {
+  /** Longest category value, in UTF-8 bytes (a label, not a text; the index keeps each value as one term). */
+  public static final int MAX_CATEGORY_BYTES = 1024;
+
   private EventFileReader() {
     // no instance
   }
@@ -559,6 +562,12 @@ public final class EventFileReader {
       if (text.isEmpty()) {
         problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at), Kind.EMPTY_VALUE,
             "a category value");
+        return 0;
+      }
+      if (text.length() > MAX_CATEGORY_BYTES / 3
+          && text.getBytes(java.nio.charset.StandardCharsets.UTF_8).length > MAX_CATEGORY_BYTES) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at), Kind.TOO_LONG,
+            "a category value of at most " + MAX_CATEGORY_BYTES + " bytes");
         return 0;
       }
       Map<String, Integer> codes = categoryCodes.get(k);

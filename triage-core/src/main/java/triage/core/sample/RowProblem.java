@@ -32,7 +32,9 @@ public record RowProblem(Path file, long line, int column, String columnName, St
     /** A weight is zero or negative and such weights were not allowed. */
     NON_POSITIVE_WEIGHT("non-positive-weight"),
     /** The event id was already seen in this sample. */
-    DUPLICATE_ID("duplicate-id");
+    DUPLICATE_ID("duplicate-id"),
+    /** A category value is longer than {@link EventFileReader#MAX_CATEGORY_BYTES} bytes. */
+    TOO_LONG("too-long");
 
     /** The name used in JSON and rejects files. */
     private final String label;

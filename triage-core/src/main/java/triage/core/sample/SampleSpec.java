@@ -40,6 +40,8 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
 
   /** The mapper used to read and write specs; strict about unknown fields. */
   private static final ObjectMapper MAPPER = new ObjectMapper()
+      .enable(com.fasterxml.jackson.core.JsonParser.Feature.STRICT_DUPLICATE_DETECTION)
+      .enable(DeserializationFeature.FAIL_ON_TRAILING_TOKENS)
       .addHandler(new UnknownFieldHandler())
       .enable(DeserializationFeature.FAIL_ON_NULL_FOR_PRIMITIVES)
       .enable(SerializationFeature.INDENT_OUTPUT);
@@ -63,9 +65,15 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
     }
     samples = List.copyOf(samples);
     Set<String> names = new HashSet<>();
+    Set<Role> roles = new HashSet<>();
     for (SampleSource s : samples) {
       if (!names.add(s.name())) {
         throw new IllegalArgumentException("sample name '" + s.name() + "' is used twice");
+      }
+      // every command reads one sample per role: a second one would be ignored without a word
+      if (s.role() != null && !roles.add(s.role())) {
+        throw new IllegalArgumentException("role '" + s.role().label() + "' is given to two samples; each role "
+            + "takes one file (join the files of one role into one)");
       }
     }
     Set<String> used = new HashSet<>(columns.all());
@@ -239,6 +247,10 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
         throw new InputException(origin, 1, 1, "empty sample spec: expected a JSON object", null);
       }
       return spec;
+    } catch (UnknownField u) {
+      // an unknown field of the top-level object comes through unwrapped
+      long[] place = u.line > 0 ? new long[] {u.line, u.column} : locateKey(text, u.field);
+      throw new InputException(origin, place[0], place[1], u.getMessage(), null);
     } catch (JsonProcessingException e) {
       Throwable cause = e;
       while (cause != null && !(cause instanceof UnknownField)) {

@@ -158,6 +158,12 @@ public final class Where {
   // ------------------------------------------------------------------ parser
 
   /** A recursive-descent parser over the tokens. */
+  /** Most operators in one condition. */
+  static final int MAX_OPERATORS = 1000;
+
+  /** Deepest nesting of parentheses. */
+  static final int MAX_NESTING = 100;
+
   private static final class Parser {
     private final String text;
     private final List<Token> tokens;
@@ -166,6 +172,25 @@ public final class Where {
     Parser(String text) {
       this.text = text;
       this.tokens = tokens(text);
+      // Bounds on the condition's shape, so that parsing, checking and evaluating it (all recursive) cannot run out
+      // of stack: at most 1,000 operators (AND, OR, NOT, + − * /) and 100 levels of parentheses. A long list of
+      // values belongs in IN (...), which has no such bound.
+      int operators = 0;
+      int depth = 0;
+      for (Token t : tokens) {
+        boolean op = t.kind() == 'k' && List.of("AND", "OR", "NOT").contains(t.text())
+            || t.kind() == 'o' && List.of("+", "-", "*", "/").contains(t.text());
+        if (op && ++operators > MAX_OPERATORS) {
+          throw new WhereException(text, t.pos(), "condition too long: more than " + MAX_OPERATORS + " operators "
+              + "(AND, OR, NOT, + - * /); for a list of values use IN (...)");
+        }
+        if (t.kind() == 'o' && t.text().equals("(") && ++depth > MAX_NESTING) {
+          throw new WhereException(text, t.pos(), "parentheses nested more than " + MAX_NESTING + " deep");
+        }
+        if (t.kind() == 'o' && t.text().equals(")")) {
+          depth--;
+        }
+      }
     }
 
     private Token peek() {

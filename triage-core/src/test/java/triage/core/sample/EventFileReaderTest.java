@@ -189,6 +189,14 @@ class EventFileReaderTest {
   }
 
   @Test
+  void overlongCategoryValue() throws IOException {
+    // 1,025 bytes: over the 1,024-byte limit (the index keeps a category value as one term)
+    InputException e = fails(HEADER + "\n1,7,10.5,3," + "é".repeat(512) + "x,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 5);
+    assertTrue(e.getMessage().contains("a category value of at most 1024 bytes"), e.getMessage());
+  }
+
+  @Test
   void nonIntegerId() throws IOException {
     InputException e = fails(HEADER + "\n1.5,7,10.5,3,A,1,1,1\n", Role.REFERENCE);
     assertPlace(e, "bad.csv", 2, 1);

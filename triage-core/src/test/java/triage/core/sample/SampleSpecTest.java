@@ -52,6 +52,21 @@ class SampleSpecTest {
   }
 
   @Test
+  void unknownTopLevelFieldDuplicateKeysTrailingTextAndRepeatedRolesAreRefused() {
+    InputException e = bad(GOOD.replace("\"format\": \"triage-samples/1\",", "\"format\": \"triage-samples/1\", \"extra\": 1,"));
+    assertTrue(e.getMessage().startsWith("spec.json:2:"), e.getMessage());
+    assertTrue(e.getMessage().contains("unknown field 'extra'"), e.getMessage());
+    e = bad(GOOD.replace("\"variations\": [", "\"samples\": [], \"variations\": ["));
+    assertTrue(e.getMessage().contains("samples"), e.getMessage());
+    e = bad(GOOD + "{}");
+    assertTrue(e.getMessage().startsWith("spec.json:"), e.getMessage());
+    e = bad(GOOD.replace("{\"name\": \"data\", \"role\": \"observed\", \"file\": \"obs.csv.gz\"}",
+        "{\"name\": \"data\", \"role\": \"observed\", \"file\": \"obs.csv.gz\"}, "
+            + "{\"name\": \"data2\", \"role\": \"observed\", \"file\": \"obs2.csv\"}"));
+    assertTrue(e.getMessage().contains("role 'observed' is given to two samples"), e.getMessage());
+  }
+
+  @Test
   void unknownRoleListsTheRoles() {
     InputException e = bad(GOOD.replace("\"role\": \"observed\"", "\"role\": \"data\""));
     assertTrue(e.getMessage().contains("unknown role 'data'"), e.getMessage());

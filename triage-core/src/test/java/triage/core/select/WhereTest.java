@@ -104,6 +104,32 @@ class WhereTest {
     return assertThrows(WhereException.class, () -> Where.parse(text, COLUMNS));
   }
 
+  /** Conditions too long or too deep for the recursive parser are refused with their place, not a crash. */
+  @Test
+  void hugeConditionsAreRefusedWithTheirPlace() {
+    StringBuilder ors = new StringBuilder("m > 0");
+    for (int i = 1; i <= 3000; i++) {
+      ors.append(" OR m > ").append(i);
+    }
+    WhereException e = fails(ors.toString());
+    assertTrue(e.getMessage().contains("more than 1000 operators"), e.getMessage());
+    assertEquals(ors.indexOf(" OR m > 1001") + 1, e.position());
+    String deep = "(".repeat(3000) + "m > 1" + ")".repeat(3000);
+    assertTrue(fails(deep).getMessage().contains("nested more than 100 deep"));
+    assertTrue(fails("NOT ".repeat(5000) + "m > 1").getMessage().contains("more than 1000 operators"));
+    // 999 ORs, and a long IN list, are fine
+    StringBuilder fine = new StringBuilder("m > 0");
+    for (int i = 1; i < 1000; i++) {
+      fine.append(" OR m > ").append(i);
+    }
+    Where.parse(fine.toString(), COLUMNS);
+    StringBuilder in = new StringBuilder("m IN (0");
+    for (int i = 1; i < 20_000; i++) {
+      in.append(", ").append(i);
+    }
+    Where.parse(in.append(")").toString(), COLUMNS);
+  }
+
   @Test
   void errorsPointAtThePlace() {
     WhereException e = fails("m > 700 AND mass < 3");
