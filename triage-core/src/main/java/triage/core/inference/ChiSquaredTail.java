@@ -22,7 +22,8 @@ import org.apache.commons.statistics.distribution.ChiSquaredDistribution;
  * §26.4.
  *
  * <p>Accuracy: about 1e-14 relative in p, including the far tail (tested to {@code p ~ 1e-219}); p underflows to
- * 0 only below the smallest double.
+ * 0 only below the smallest double. Where p is below 1e-290, Z comes from ln p ({@link LogTail}), so it stays
+ * finite (tested to Z = 68 against mpmath).
  */
 public final class ChiSquaredTail {
   private ChiSquaredTail() {
@@ -48,6 +49,11 @@ public final class ChiSquaredTail {
    * @return one-sided significance of {@link #pValue(double, double)}
    */
   public static double z(double t, double dof) {
-    return Significance.zFromP(pValue(t, dof));
+    double p = pValue(t, dof);
+    if (p < CountingSignificance.UNDERFLOW && t / 2 >= dof / 2 + 1) {
+      // p (nearly) underflows: Z from ln p, finite and ordered
+      return LogTail.zFromLogP(LogTail.logUpperGamma(dof / 2, t / 2));
+    }
+    return Significance.zFromP(p);
   }
 }

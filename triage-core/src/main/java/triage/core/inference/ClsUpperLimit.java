@@ -27,15 +27,17 @@ import org.apache.commons.statistics.distribution.NormalDistribution;
  * <p>Algorithm: Poisson cumulative probabilities as regularized upper incomplete gamma
  * {@code P(N <= n | mu) = Q(n + 1, mu)}; when {@code CL_b} underflows (very large b), the ratio is formed from
  * scaled term sums in log space. The Gaussian average uses composite Simpson integration over
- * {@code [max(0, b - 8 sigma_b), b + 8 sigma_b]} with 2048 intervals. The root is found with the Brent solver of
+ * {@code [max(0, b - 8 sigma_b), b + 8 sigma_b]} with 2048 intervals, split at {@code n + 20 + 10 √(n+1)} into two
+ * panels of 2048 intervals each when the range extends past it (σ_b large against n). The root is found with the Brent solver of
  * commons-numbers-rootfinder, bracketed by [0, classical upper limit], since the CLs limit never exceeds it.
  * Reference: A.L. Read, "Presentation of search results: the CLs technique", J. Phys. G 28 (2002) 2693,
  * doi:10.1088/0954-3899/28/10/313; the marginalisation follows R.D. Cousins, V.L. Highland, Nucl. Instrum. Meth.
  * A 320 (1992) 331, doi:10.1016/0168-9002(92)90794-5.
  *
- * <p>Accuracy: the root is solved to an absolute tolerance of 1e-10 in s. The Simpson error is below 1e-9
- * relative for {@code sigma_b} not much smaller than the integration step (for {@code sigma_b / b < 1e-6} the
- * known-b formula is used).
+ * <p>Accuracy: the root is solved to an absolute tolerance of 1e-10 in s. The limits agree with adaptive
+ * quadrature (SciPy) to 1e-7 relative, tested for σ_b from 0.3 to 200 (with a single panel, before the split, σ_b
+ * = 100 and 200 against b = 1 were off by 5e-6 and 1.4e-4); for {@code sigma_b / b < 1e-6} the known-b formula is
+ * used.
  */
 public final class ClsUpperLimit {
   private static final double DEFAULT_CL = 0.95;
@@ -126,7 +128,7 @@ public final class ClsUpperLimit {
     if (isKnown(b, sigmaB)) {
       return clsKnown(s, observed, b);
     }
-    final Prior prior = new Prior(b, sigmaB);
+    final Prior prior = new Prior(b, sigmaB, observed);
     return prior.cls(s, observed, prior.average(0, observed));
   }
 
@@ -158,7 +160,7 @@ public final class ClsUpperLimit {
     if (isKnown(b, sigmaB)) {
       cls = s -> clsKnown(s, observed, b);
     } else {
-      final Prior prior = new Prior(b, sigmaB);
+      final Prior prior = new Prior(b, sigmaB, observed);
       final double clb = prior.average(0, observed);
       cls = s -> prior.cls(s, observed, clb);
     }
@@ -210,26 +212,42 @@ public final class ClsUpperLimit {
     return max + Math.log(sum.value());
   }
 
-  /** Simpson nodes and weights of the truncated Gaussian background prior. */
+  /**
+   * Simpson nodes and weights of the truncated Gaussian background prior. The Poisson probability
+   * {@code P(N <= n | s + b')} changes from 1 to 0 within a few √(n+1) of {@code b' = n - s}, which for s ≥ 0 lies
+   * below {@code c = n + 20 + 10 √(n+1)}; when the range extends past c (σ_b large against n), [lo, c] and [c, hi]
+   * get {@value #SIMPSON_INTERVALS} intervals each, so the step stays small where the integrand changes.
+   */
   private static final class Prior {
-    private final double[] nodes = new double[SIMPSON_INTERVALS + 1];
-    private final double[] weights = new double[SIMPSON_INTERVALS + 1];
+    private final double[] nodes;
+    private final double[] weights;
 
-    Prior(double b, double sigmaB) {
+    Prior(double b, double sigmaB, int n) {
       final double lo = Math.max(0, b - RANGE_SIGMAS * sigmaB);
       final double hi = b + RANGE_SIGMAS * sigmaB;
-      final double h = (hi - lo) / SIMPSON_INTERVALS;
+      final double c = n + 20 + 10 * Math.sqrt(n + 1.0);
+      final double[] edges = c > lo && c < hi ? new double[] {lo, c, hi} : new double[] {lo, hi};
+      final int panels = edges.length - 1;
+      nodes = new double[panels * (SIMPSON_INTERVALS + 1)];
+      weights = new double[nodes.length];
       final NormalDistribution gauss = NormalDistribution.of(b, sigmaB);
       final NeumaierSum norm = NeumaierSum.create();
-      for (int i = 0; i <= SIMPSON_INTERVALS; i++) {
-        final double x = i == SIMPSON_INTERVALS ? hi : lo + i * h;
-        final double c = i == 0 || i == SIMPSON_INTERVALS ? 1 : (i % 2 == 1 ? 4 : 2);
-        nodes[i] = x;
-        weights[i] = c * gauss.density(x);
-        norm.add(weights[i]);
+      int k = 0;
+      for (int panel = 0; panel < panels; panel++) {
+        final double a = edges[panel];
+        final double e = edges[panel + 1];
+        final double h = (e - a) / SIMPSON_INTERVALS;
+        for (int i = 0; i <= SIMPSON_INTERVALS; i++) {
+          final double x = i == SIMPSON_INTERVALS ? e : a + i * h;
+          final double w = i == 0 || i == SIMPSON_INTERVALS ? 1 : (i % 2 == 1 ? 4 : 2);
+          nodes[k] = x;
+          weights[k] = w * h * gauss.density(x);
+          norm.add(weights[k]);
+          k++;
+        }
       }
       final double total = norm.value();
-      for (int i = 0; i <= SIMPSON_INTERVALS; i++) {
+      for (int i = 0; i < weights.length; i++) {
         weights[i] /= total;
       }
     }

@@ -43,6 +43,10 @@ import org.apache.commons.numbers.gamma.RegularizedGamma;
  * (2008) 480, doi:10.1016/j.nima.2008.07.086, arXiv:physics/0702156 (Z_Bi); T.-P. Li, Y.-Q. Ma, Astrophys. J.
  * 272 (1983) 317, doi:10.1086/161295, eq. (17).
  *
+ * <p>Far tail: where the p-value of Z_Bi (or of its Poisson limit) is below 1e-290, Z comes from ln p computed
+ * in logarithms ({@link LogTail}), so strong excesses keep finite, ordered significances (tested to Z = 90 against
+ * mpmath); the reported p-value itself may then be 0.
+ *
  * <p>Accuracy: the function {@code h(x) = (1+x) ln(1+x) - x} common to the first two formulas is evaluated by
  * its power series {@code sum_{k>=2} (-1)^k x^k / (k(k-1))} for {@code |x| < 0.1}, so Z keeps full relative
  * precision when {@code n ~ b} or {@code s << b}. The sigma_b formula is rewritten without cancellation as
@@ -53,6 +57,9 @@ import org.apache.commons.numbers.gamma.RegularizedGamma;
  * regularized incomplete beta of commons-numbers-gamma (about 1e-14 relative) and the tail inverse normal.
  */
 public final class CountingSignificance {
+  /** Below this p-value, Z is computed from ln p (see {@link LogTail}). */
+  static final double UNDERFLOW = 1e-290;
+
   /** Below this |x| the power series of h(x) is used. */
   private static final double SERIES_LIMIT = 0.1;
   /** 2^-53: relative effect of sigma_b below which the known-b formula is exact in double precision. */
@@ -174,6 +181,10 @@ public final class CountingSignificance {
       // x = 1/(1+tau) computed without rounding 1+tau when tau is tiny
       final double x = 1 / (1 + tau);
       p = Math.min(1, Math.max(0, RegularizedBeta.value(x, nOn, nOff + 1)));
+      if (p < UNDERFLOW && x < (nOn + 1) / (nOn + nOff + 3)) {
+        // p (nearly) underflows: Z from ln p, so that strong excesses keep finite, ordered significances
+        return new ZBiResult(p, LogTail.zFromLogP(LogTail.logRegularizedBeta(x, nOn, nOff + 1)), nOn, nOff, tau);
+      }
     }
     return new ZBiResult(p, Significance.zFromP(p), nOn, nOff, tau);
   }
@@ -195,7 +206,9 @@ public final class CountingSignificance {
     if (sigmaB == 0 || !Double.isFinite(tau)) {
       // Poisson limit: P(N >= n | b) = P(n, b) (regularized lower incomplete gamma)
       final double p = n == 0 ? 1 : RegularizedGamma.P.value(n, b);
-      return new ZBiResult(p, Significance.zFromP(p), n, Double.POSITIVE_INFINITY, Double.POSITIVE_INFINITY);
+      final double z = p < UNDERFLOW && b < n + 1 ? LogTail.zFromLogP(LogTail.logLowerGamma(n, b))
+          : Significance.zFromP(p);
+      return new ZBiResult(p, z, n, Double.POSITIVE_INFINITY, Double.POSITIVE_INFINITY);
     }
     return zBi(n, tau * b, tau);
   }

@@ -44,6 +44,31 @@ final class Fixtures {
     }
   }
 
+  /** Rows as text fields (for fixtures with a text column); '#' lines and the header line are skipped. */
+  static List<String[]> rowsWithText(String resource) {
+    try (InputStream in = Fixtures.class.getResourceAsStream(resource)) {
+      if (in == null) {
+        throw new IllegalStateException("missing fixture " + resource);
+      }
+      final BufferedReader r = new BufferedReader(new InputStreamReader(in, StandardCharsets.UTF_8));
+      final List<String[]> rows = new ArrayList<>();
+      boolean header = true;
+      for (String line = r.readLine(); line != null; line = r.readLine()) {
+        if (line.startsWith("#") || line.isBlank()) {
+          continue;
+        }
+        if (header) {
+          header = false;
+          continue;
+        }
+        rows.add(line.split(","));
+      }
+      return rows;
+    } catch (IOException e) {
+      throw new UncheckedIOException(e);
+    }
+  }
+
   /** Single column as an array. */
   static double[] column(String resource) {
     final List<double[]> rows = rows(resource);

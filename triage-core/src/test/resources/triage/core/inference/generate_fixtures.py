@@ -98,14 +98,18 @@ def cdf(n, mu):
 def avg(n, s, b, sig):
     lo = max(0.0, b - 8 * sig)
     hi = b + 8 * sig
-    num = integrate.quad(lambda x: cdf(n, s + x) * stats.norm.pdf(x, b, sig), lo, hi, epsabs=0, epsrel=1e-13, limit=200)[0]
+    c = n + 20 + 10 * np.sqrt(n + 1)  # the integrand changes below c: tell quad when the range extends past it
+    pts = [c] if lo < c < hi else None
+    num = integrate.quad(lambda x: cdf(n, s + x) * stats.norm.pdf(x, b, sig), lo, hi, epsabs=0, epsrel=1e-13, limit=200,
+                         points=pts)[0]
     den = integrate.quad(lambda x: stats.norm.pdf(x, b, sig), lo, hi, epsabs=0, epsrel=1e-13, limit=200)[0]
     return num / den
 
 
 rows = []
 for n, b, sig, cl in [(1, 1.0, 0.3, 0.95), (2, 3.0, 1.0, 0.95), (3, 3.0, 1.5, 0.95), (5, 5.0, 2.0, 0.95),
-                      (4, 2.0, 0.5, 0.90), (10, 8.0, 3.0, 0.95), (2, 0.5, 0.4, 0.95)]:
+                      (4, 2.0, 0.5, 0.90), (10, 8.0, 3.0, 0.95), (2, 0.5, 0.4, 0.95), (2, 1.0, 100.0, 0.95),
+                      (2, 1.0, 200.0, 0.95), (5, 3.0, 50.0, 0.95)]:
     clb = avg(n, 0.0, b, sig)
     f = lambda s: avg(n, s, b, sig) / clb - (1 - cl)
     ul = optimize.brentq(f, 1e-6, 50, xtol=1e-12, rtol=1e-14)
@@ -166,3 +170,31 @@ for s, b, sig in [(1e-3, 100, 0), (0.01, 1, 0), (1e-6, 1, 0), (0.5, 10, 0), (1e-
         q = (s + b) * mp.log((s + b) * (b + v) / (b ** 2 + (s + b) * v)) - b ** 2 / v * mp.log(1 + v * s / (b * (b + v)))
     rows.append([float(s), float(b), float(sig), float(mp.sqrt(2 * q))])
 write("asimov-z.csv", ["s", "b", "sigma_b", "z"], rows, "Asimov Z (CCGV known-b and Cowan sigma_b formulas) in mpmath, 50 digits")
+
+# 8. significances whose p-value underflows a double (Z beyond about 38): ln p in mpmath (60 digits), then z solving
+# ln(erfc(z/sqrt2)/2) = ln p. kind zbi: n, b, sigma_b -> p = I_x(n, tau b + 1), x = 1/(1+tau), tau = b/sigma_b^2;
+# poisson: n, b -> p = P(n, b) (lower regularised gamma); chi2: t, dof -> p = Q(dof/2, t/2).
+mp.mp.dps = 60
+rows = []
+def z_of_logp(lp):
+    return mp.findroot(lambda z: mp.log(mp.erfc(z / mp.sqrt(2)) / 2) - lp, mp.sqrt(-2 * lp))
+for n, b, sig in [(1000, 100, 20), (5000, 100, 10), (300, 10, 1), (2000, 100, 30)]:
+    n, b, sig = mp.mpf(n), mp.mpf(b), mp.mpf(sig)
+    tau = b / sig ** 2
+    lp = mp.log(mp.betainc(n, tau * b + 1, 0, 1 / (1 + tau), regularized=True))
+    rows.append(["zbi", float(n), float(b), float(sig), float(lp), float(z_of_logp(lp))])
+for n, b in [(500, 50), (2000, 100), (120, 1)]:
+    n, b = mp.mpf(n), mp.mpf(b)
+    lp = mp.log(mp.gammainc(n, 0, b, regularized=True))
+    rows.append(["poisson", float(n), float(b), 0.0, float(lp), float(z_of_logp(lp))])
+for t, nu in [(1600, 3), (5000, 66), (3000, 1)]:
+    t, nu = mp.mpf(t), mp.mpf(nu)
+    lp = mp.log(mp.gammainc(nu / 2, t / 2, mp.inf, regularized=True))
+    rows.append(["chi2", float(t), float(nu), 0.0, float(lp), float(z_of_logp(lp))])
+with open("z-underflow.csv", "w") as f:
+    f.write(VERSIONS)
+    f.write("# ln p in mpmath (60 digits) and z solving ln(erfc(z/sqrt2)/2) = ln p; kind zbi (a = n, b = b, with sigma_b), "
+            "poisson (a = n, b = b), chi2 (a = t, b = dof)\n")
+    f.write("kind,a,b,sigma_b,ln_p,z\n")
+    for r in rows:
+        f.write(r[0] + "," + ",".join(repr(float(v)) for v in r[1:]) + "\n")
