@@ -66,6 +66,9 @@ public final class BreakdownCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    if (top < 1) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--top must be at least 1");
+    }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       List<String> columns = by;

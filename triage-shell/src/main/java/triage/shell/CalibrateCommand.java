@@ -139,6 +139,12 @@ public final class CalibrateCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    var parsed = spec.commandLine().getParseResult();
+    for (String tuning : new String[] {"--clips", "--caps", "--plateau-tolerance"}) {
+      if (!tuneClip && parsed != null && parsed.hasMatchedOption(tuning)) {
+        throw usage(tuning + " is a setting of --tune-clip, which was not given");
+      }
+    }
     int[] sh = parseShard();
     boolean inject = injectSample != null || injectBump != null;
     int modes = (merge != null ? 1 : 0) + (tuneClip ? 1 : 0) + (inject ? 1 : 0);

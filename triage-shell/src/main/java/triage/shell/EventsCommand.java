@@ -60,6 +60,9 @@ public final class EventsCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
+    if (top < 1) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--top must be at least 1");
+    }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       if (m.sample(sample) == null) {

@@ -205,6 +205,10 @@ public final class FitCommand implements Callable<Integer> {
       o.say("model %s: t = %.4f, %d parameters, %s after %d iterations (%d loss evaluations), %.1f s", version,
           fit.testStatistic(), model.parameterCount(), fit.converged() ? "converged" : "NOT converged ("
               + fit.stopReason() + ")", fit.iterations(), fit.lossEvaluations(), fit.elapsedSeconds());
+      if (fit.testStatistic() < 0) {
+        o.say("warning: t < 0: the fit ended above the loss of f = 0 (observed and reference alike), so it did not "
+            + "minimise the loss (with Adam, a learning rate too large?); this t means nothing.");
+      }
       if (!fit.converged()) {
         o.say("note: t is only comparable with toys fitted to the same stopping rule; a fit that did not converge "
             + "understates t.");

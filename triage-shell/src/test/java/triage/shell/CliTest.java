@@ -173,6 +173,9 @@ class CliTest {
         {"ingest", "--index", "", "--reference", dir.resolve("ref.csv").toString(), "--observed",
             dir.resolve("obs.csv").toString(), "--features", "m", "--weight", "w"},
         {"run", "--index", index.toString(), dir.toString()},
+        {"events", "--index", index.toString(), "--top", "-1"},
+        {"breakdown", "--index", index.toString(), "--by", "run", "--top", "0"},
+        {"calibrate", "--index", index.toString(), "--toys", "1", "--clips", "1,2"},
     };
     for (String[] c : cases) {
       Run r = run(c);
