@@ -564,6 +564,13 @@ public final class EventFileReader {
             "a category value");
         return 0;
       }
+      if (text.indexOf('\uFFFD') >= 0) {
+        // the reader decodes bytes that are not UTF-8 as U+FFFD; two different byte strings would merge into one
+        // category value, so such a value is refused
+        problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at), Kind.NOT_UTF8,
+            "a category value in UTF-8 text");
+        return 0;
+      }
       if (text.length() > MAX_CATEGORY_BYTES / 3
           && text.getBytes(java.nio.charset.StandardCharsets.UTF_8).length > MAX_CATEGORY_BYTES) {
         problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at), Kind.TOO_LONG,

@@ -34,7 +34,9 @@ public record RowProblem(Path file, long line, int column, String columnName, St
     /** The event id was already seen in this sample. */
     DUPLICATE_ID("duplicate-id"),
     /** A category value is longer than {@link EventFileReader#MAX_CATEGORY_BYTES} bytes. */
-    TOO_LONG("too-long");
+    TOO_LONG("too-long"),
+    /** A category value holds bytes that are not UTF-8 (decoded as U+FFFD). */
+    NOT_UTF8("not-utf8");
 
     /** The name used in JSON and rejects files. */
     private final String label;

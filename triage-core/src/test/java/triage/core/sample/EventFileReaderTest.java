@@ -197,6 +197,21 @@ class EventFileReaderTest {
   }
 
   @Test
+  void categoryBytesThatAreNotUtf8() throws IOException {
+    // 0xFF is never UTF-8; it would be decoded as U+FFFD and could merge with other values
+    Path f = dir.resolve("bad.csv");
+    java.io.ByteArrayOutputStream b = new java.io.ByteArrayOutputStream();
+    b.writeBytes((HEADER + "\n1,7,10.5,3,A").getBytes(java.nio.charset.StandardCharsets.UTF_8));
+    b.write(0xFF);
+    b.writeBytes(",1,1,1\n".getBytes(java.nio.charset.StandardCharsets.UTF_8));
+    java.nio.file.Files.write(f, b.toByteArray());
+    InputException e = assertThrows(InputException.class,
+        () -> read(f, Role.REFERENCE, ReadOptions.strict().withBatchSize(2)));
+    assertPlace(e, "bad.csv", 2, 5);
+    assertTrue(e.getMessage().contains("a category value in UTF-8 text"), e.getMessage());
+  }
+
+  @Test
   void nonIntegerId() throws IOException {
     InputException e = fails(HEADER + "\n1.5,7,10.5,3,A,1,1,1\n", Role.REFERENCE);
     assertPlace(e, "bad.csv", 2, 1);
