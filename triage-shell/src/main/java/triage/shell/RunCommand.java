@@ -74,12 +74,31 @@ public final class RunCommand implements Callable<Integer> {
       if (code != 0) {
         err.println("triage: " + script + ":" + (i + 1) + ": this line failed (exit code " + code + ")");
         err.flush();
-        worst = Math.max(worst, code);
+        worst = worse(worst, code);
         if (!keepGoing) {
           return code;
         }
       }
     }
     return worst;
+  }
+
+  /**
+   * The worse of two exit codes: an internal error (1) outranks cancellation (130), invalid input (3) and a usage
+   * error (2), in that order, whatever their numbers.
+   */
+  static int worse(int a, int b) {
+    return rank(b) > rank(a) ? b : a;
+  }
+
+  private static int rank(int code) {
+    return switch (code) {
+      case 0 -> 0;
+      case ExitCodes.USAGE -> 1;
+      case ExitCodes.INPUT -> 2;
+      case ExitCodes.CANCELLED -> 3;
+      case ExitCodes.INTERNAL -> 4;
+      default -> 5;
+    };
   }
 }

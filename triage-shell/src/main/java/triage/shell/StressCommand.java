@@ -61,7 +61,14 @@ public final class StressCommand implements Callable<Integer> {
       Manifest m = store.manifest();
       List<ScaleShift> shifts = new ArrayList<>(m.spec().scales());
       for (String s : scales) {
-        shifts.add(parseScale(s, m.spec().columns().features()));
+        ScaleShift extra = parseScale(s, m.spec().columns().features());
+        boolean taken = shifts.stream().anyMatch(x -> x.name().equals(extra.name()))
+            || m.spec().variations().stream().anyMatch(v -> v.name().equals(extra.name()));
+        if (taken) {
+          throw new CommandLine.ParameterException(spec.commandLine(), "--scale '" + s + "': the name '"
+              + extra.name() + "' is already a systematic of the spec or of another --scale; choose another name");
+        }
+        shifts.add(extra);
       }
       String observed = Roles.name(m, Role.OBSERVED);
       String reference = Roles.name(m, Role.REFERENCE);

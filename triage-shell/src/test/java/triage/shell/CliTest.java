@@ -320,6 +320,9 @@ class CliTest {
     Run bad = run("stress", "--index", index.toString(), "--where", "x > 50", "--scale", "oops=y:0.1");
     assertEquals(2, bad.code());
     assertTrue(bad.err().contains("'y' is not a feature (features: x)"), bad.err());
+    Run reused = run("stress", "--index", index.toString(), "--where", "x > 50", "--scale", "x_scale=x:0.2");
+    assertEquals(2, reused.code());
+    assertTrue(reused.err().contains("already a systematic"), reused.err());
   }
 
   @Test

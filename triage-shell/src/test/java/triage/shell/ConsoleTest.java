@@ -75,4 +75,16 @@ class ConsoleTest {
     CliTest.Run all = CliTest.run("run", "--index", index.toString(), "--keep-going", script.toString());
     assertTrue(all.out().contains("triage> info"), all.out());
   }
+
+  /** --keep-going exits with the worst code by severity, not by number (an internal error is not hidden by a 3). */
+  @org.junit.jupiter.api.Test
+  void keepGoingReportsTheMostSevereExitCode() {
+    org.junit.jupiter.api.Assertions.assertEquals(ExitCodes.INTERNAL, RunCommand.worse(ExitCodes.INTERNAL,
+        ExitCodes.INPUT));
+    org.junit.jupiter.api.Assertions.assertEquals(ExitCodes.INTERNAL, RunCommand.worse(ExitCodes.INPUT,
+        ExitCodes.INTERNAL));
+    org.junit.jupiter.api.Assertions.assertEquals(ExitCodes.INPUT, RunCommand.worse(ExitCodes.USAGE,
+        ExitCodes.INPUT));
+    org.junit.jupiter.api.Assertions.assertEquals(ExitCodes.USAGE, RunCommand.worse(0, ExitCodes.USAGE));
+  }
 }

@@ -25,6 +25,12 @@ public record Columns(List<String> features, String id, String run, String block
     if (features == null || features.isEmpty()) {
       throw new IllegalArgumentException("no feature columns: 'features' needs at least one numeric column");
     }
+    // (immutable lists refuse contains(null), so test each name)
+    if (features.stream().anyMatch(java.util.Objects::isNull)
+        || (categories != null && categories.stream().anyMatch(java.util.Objects::isNull))) {
+      throw new IllegalArgumentException("a column name is null: every name in 'features' and 'categories' must be "
+          + "text");
+    }
     features = List.copyOf(features);
     categories = categories == null ? List.of() : List.copyOf(categories);
     checkName("id column", id);

@@ -320,8 +320,13 @@ public final class EventFileReader {
             }
             record = it.next();
           } catch (UncheckedIOException e) {
-            throw new InputException(file, linesBefore + lineBefore + 1, 0, "cannot parse the row: "
-                + rootMessage(e), e);
+            String why = rootMessage(e);
+            // the parser's own wording counts lines from where it was started, not from the file's start
+            if (why != null && why.contains("EOF reached before encapsulated token finished")) {
+              why = "a quoted field that starts on this line is not closed before the end of the file (expected a "
+                  + "closing '\"'; a row cannot be set aside when its end cannot be found)";
+            }
+            throw new InputException(file, linesBefore + lineBefore + 1, 0, "cannot parse the row: " + why, e);
           }
           long line = linesBefore + lineBefore + 1;
           lineBefore = parser.getCurrentLineNumber();

@@ -261,16 +261,52 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
         throw new InputException(origin, place[0], place[1], u.getMessage(), null);
       }
       JsonLocation at = e.getLocation();
-      String why = e.getOriginalMessage();
-      Throwable root = e;
-      while (root.getCause() != null) {
-        root = root.getCause();
-      }
-      if (root instanceof IllegalArgumentException) {
-        why = root.getMessage();
-      }
       throw new InputException(origin, at == null ? 0 : at.getLineNr(), at == null ? 0 : at.getColumnNr(),
-          "bad sample spec: " + why, null);
+          "bad sample spec: " + plainWords(e), null);
     }
+  }
+
+  /** What went wrong while reading a spec, in the spec's terms rather than the JSON library's. */
+  static String plainWords(JsonProcessingException e) {
+    Throwable root = e;
+    while (root.getCause() != null) {
+      root = root.getCause();
+    }
+    if (root instanceof IllegalArgumentException) {
+      return root.getMessage();
+    }
+    String where = "";
+    if (e instanceof com.fasterxml.jackson.databind.JsonMappingException m && !m.getPath().isEmpty()) {
+      StringBuilder b = new StringBuilder();
+      for (var ref : m.getPath()) {
+        if (ref.getFieldName() != null) {
+          b.append(b.isEmpty() ? "" : ".").append(ref.getFieldName());
+        } else if (ref.getIndex() >= 0) {
+          b.append('[').append(ref.getIndex()).append(']');
+        }
+      }
+      where = b.isEmpty() ? "" : "'" + b + "': ";
+    }
+    if (e instanceof com.fasterxml.jackson.databind.exc.MismatchedInputException mi && mi.getTargetType() != null) {
+      Class<?> t = mi.getTargetType();
+      String wanted = java.util.Collection.class.isAssignableFrom(t) ? "a list [ ... ]"
+          : t == String.class ? "text in quotes"
+          : t == double.class || t == Double.class || t == int.class || t == Integer.class ? "a number"
+          : t == boolean.class || t == Boolean.class ? "true or false"
+          : "an object { ... }";
+      return where + "expected " + wanted;
+    }
+    if (root instanceof NullPointerException) {
+      return where + "a value is missing (null)";
+    }
+    String original = e.getOriginalMessage();
+    if (original != null && original.contains("Non-standard token")) {
+      return where + "NaN and Infinity are not numbers in JSON; give a finite number";
+    }
+    if (original != null && original.contains("Unexpected end-of-input")) {
+      return where + "the text ends before the spec is complete (a missing '}' or ']'?)";
+    }
+    // the library's own wording, first line only
+    return where + (original == null ? e.getClass().getSimpleName() : original.lines().findFirst().orElse(""));
   }
 }

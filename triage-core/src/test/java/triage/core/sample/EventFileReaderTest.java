@@ -1,6 +1,7 @@
 package triage.core.sample;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -256,6 +257,12 @@ class EventFileReaderTest {
   void unterminatedQuoteIsReportedWithItsLine() throws IOException {
     InputException e = fails(HEADER + "\n1,7,10.5,3,\"A,1,1,1\n", Role.REFERENCE);
     assertTrue(e.getMessage().contains("bad.csv:2"), e.getMessage());
+    assertTrue(e.getMessage().contains("not closed before the end of the file"), e.getMessage());
+    // further down the file too (the parser that reads quoted rows starts mid-file)
+    InputException later = fails(HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,10.5,3,A,1,1,1\n3,7,10.5,3,\"A,1,1,1\n",
+        Role.REFERENCE);
+    assertTrue(later.getMessage().contains("bad.csv:4"), later.getMessage());
+    assertFalse(later.getMessage().contains("startline"), later.getMessage());
   }
 
   @Test

@@ -67,6 +67,17 @@ class SampleSpecTest {
   }
 
   @Test
+  void typeMistakesAreNamedInTheSpecsTerms() {
+    InputException e = bad(GOOD.replace("\"features\": [\"m\", \"pt\"]", "\"features\": \"m\""));
+    assertTrue(e.getMessage().contains("'columns.features': expected a list"), e.getMessage());
+    e = bad(GOOD.replace("\"features\": [\"m\", \"pt\"]", "\"features\": [null]"));
+    assertTrue(e.getMessage().contains("a column name is null"), e.getMessage());
+    e = bad(GOOD.substring(0, GOOD.indexOf("\"samples\"")));
+    assertTrue(e.getMessage().startsWith("spec.json:"), e.getMessage());
+    assertTrue(!e.getMessage().contains("REDACTED") && !e.getMessage().contains("Jackson"), e.getMessage());
+  }
+
+  @Test
   void unknownRoleListsTheRoles() {
     InputException e = bad(GOOD.replace("\"role\": \"observed\"", "\"role\": \"data\""));
     assertTrue(e.getMessage().contains("unknown role 'data'"), e.getMessage());
