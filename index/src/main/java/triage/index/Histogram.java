@@ -30,19 +30,33 @@ public record Histogram(String sample, String column, int bins, double lo, doubl
   }
 
   /**
-   * The bin index of a value: 0 for underflow, bins + 1 for overflow. Values on the upper edge go to overflow;
-   * the index is computed as ⌊(x − lo)/(hi − lo) · bins⌋ + 1 and clamped to the regular bins, so rounding near
-   * an inner edge can move a value by at most one bin, the same way for every caller.
+   * The bin index of a value: 0 for underflow, bins + 1 for overflow, −1 for NaN (a value that is in no bin, such
+   * as the variation weight of an observed event; callers leave it out). Values on the upper edge go to overflow.
+   * The index ⌊(x − lo)/(hi − lo) · bins⌋ + 1 is corrected against the edges {@link #edge} themselves, so a value
+   * exactly on an edge falls in the bin that starts there, as the printed edges say.
    */
   public static int binOf(double x, int bins, double lo, double hi) {
+    if (Double.isNaN(x)) {
+      return -1;
+    }
     if (x < lo) {
       return 0;
     }
     if (x >= hi) {
       return bins + 1;
     }
-    int b = (int) ((x - lo) / (hi - lo) * bins) + 1;
-    return Math.min(Math.max(b, 1), bins);
+    int k = Math.min(Math.max((int) ((x - lo) / (hi - lo) * bins), 0), bins - 1);
+    if (k + 1 < bins && x >= edge(k + 1, bins, lo, hi)) {
+      k++;
+    } else if (k > 0 && x < edge(k, bins, lo, hi)) {
+      k--;
+    }
+    return k + 1;
+  }
+
+  /** Edge number k (0 … bins) of the regular bins: lo + (hi − lo)·k/bins, and hi itself for k = bins. */
+  public static double edge(int k, int bins, double lo, double hi) {
+    return k == bins ? hi : lo + (hi - lo) * k / bins;
   }
 
   /** The total count including under- and overflow. */

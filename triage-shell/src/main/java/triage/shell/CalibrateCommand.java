@@ -319,6 +319,10 @@ public final class CalibrateCommand implements Callable<Integer> {
       s.warnings().add(unconverged + " of " + ts.length + " toys did not meet the stopping rule (like the data "
           + "fit, if it did not): t is understated alike in both");
     }
+    if (!c.model().training().converged() && unconverged == 0) {
+      s.warnings().add("the data fit did not meet the stopping rule but every toy did: t_obs may be understated "
+          + "against the toys (refit the data with more iterations)");
+    }
     Map<String, Object> tuned = tunedClipFor(c, s.warnings());
     for (String warning : s.warnings()) {
       o.say("warning    %s", warning);

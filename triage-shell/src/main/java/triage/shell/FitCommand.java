@@ -175,9 +175,15 @@ public final class FitCommand implements Callable<Integer> {
             + "reference weights are not normalised to the observed data, use --normalise observed",
             predicted, nObs, (nObs - predicted) / Math.sqrt(predicted));
       }
-      TrainingData data = new TrainingData(features, ref, refW, obs,
-          negative ? WeightPolicy.ALLOW_NEGATIVE : WeightPolicy.POSITIVE_ONLY,
-          java.util.OptionalDouble.of(expected));
+      TrainingData data;
+      try {
+        data = new TrainingData(features, ref, refW, obs,
+            negative ? WeightPolicy.ALLOW_NEGATIVE : WeightPolicy.POSITIVE_ONLY,
+            java.util.OptionalDouble.of(expected));
+      } catch (IllegalArgumentException e) {
+        // e.g. reference weights (negative ones allowed at ingest) that do not sum to a positive yield
+        throw new InputException(index, "cannot fit on this index: " + e.getMessage());
+      }
       o.note("fitting %s on %d observed and %d reference events (%s, clip %s, %s) ...", settings.hiddenWidths(),
           m.sample(observed).events(), m.sample(reference).events(), settings.activation(), settings.clip(),
           settings.optimiser());

@@ -19,6 +19,7 @@ import triage.core.sample.ReadOptions;
 import triage.core.sample.Role;
 import triage.core.sample.SampleSource;
 import triage.core.sample.SampleSpec;
+import triage.core.sample.WeightPolicy;
 
 /** {@code triage followup}: a frozen region on independent data. */
 @Command(name = "followup", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
@@ -73,6 +74,11 @@ public final class FollowupCommand implements Callable<Integer> {
       description = "Run even if observed ids overlap the discovery sample (recorded in the output).")
   boolean allowOverlap;
 
+  /** Negative weights. */
+  @Option(names = "--allow-negative-weights",
+      description = "Accept zero and negative reference weights (as ingest does with the same option).")
+  boolean allowNegativeWeights;
+
   /** JSON output. */
   @Option(names = "--json", description = "Print exactly one JSON object on stdout (fields: docs/json.md).")
   boolean json;
@@ -113,7 +119,8 @@ public final class FollowupCommand implements Callable<Integer> {
       throw new InputException(inputs.specFile, "needs exactly one followup-reference and one followup-observed "
           + "sample (found " + refs.size() + " and " + obs.size() + ")");
     }
-    ReadOptions read = ReadOptions.strict();
+    ReadOptions read = allowNegativeWeights ? ReadOptions.strict().with(WeightPolicy.ANY_FINITE)
+        : ReadOptions.strict();
     o.note("reading %s", obs.get(0).file());
     RegionApplier.Yield n = RegionApplier.apply(region, follow, obs.get(0), read);
     long overlap = region.discoveryIds().overlap(n.ids());

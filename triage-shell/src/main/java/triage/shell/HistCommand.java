@@ -75,6 +75,10 @@ public final class HistCommand implements Callable<Integer> {
     if (bins < 1 || bins > 10_000) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--bins must be between 1 and 10000");
     }
+    if (!pair.equals("discovery") && !pair.equals("follow-up")) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--pair must be discovery or follow-up, not '"
+          + pair + "'");
+    }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       Role obsRole = pair.equals("follow-up") ? Role.FOLLOWUP_OBSERVED : Role.OBSERVED;
@@ -85,8 +89,11 @@ public final class HistCommand implements Callable<Integer> {
       double lo;
       double hi;
       if (range != null) {
-        String[] parts = range.split(":");
+        String[] parts = range.split(":", -1);
         try {
+          if (parts.length != 2) {
+            throw new IllegalArgumentException("two parts");
+          }
           lo = Double.parseDouble(parts[0]);
           hi = Double.parseDouble(parts[1]);
         } catch (RuntimeException e) {
@@ -122,7 +129,7 @@ public final class HistCommand implements Callable<Integer> {
       List<Map<String, Object>> rows = new ArrayList<>();
       double max = 1;
       for (int i = 0; i < bins; i++) {
-        edges[i] = lo + (hi - lo) * i / bins;
+        edges[i] = Histogram.edge(i, bins, lo, hi);
         n[i] = ho.counts()[i + 1];
         b[i] = hr.sumOfWeights()[i + 1];
         double var = b[i] + hr.sumOfSquaredWeights()[i + 1];

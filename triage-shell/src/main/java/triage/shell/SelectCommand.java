@@ -132,17 +132,23 @@ public final class SelectCommand implements Callable<Integer> {
           + "local Z with b known = %.2f", label, n.count(), b.sumOfWeights(), b.statisticalError(), excess, zbi.z(),
           zbi.pValue(), zlr);
     } else {
-      o.say("%-10s observed %d, expected %.4g: no reference events selected, no significance", label, n.count(),
-          b.sumOfWeights());
+      j.put("localZBi", Double.NaN);
+      j.put("localPBi", Double.NaN);
+      j.put("localZKnownBackground", Double.NaN);
+      o.say("%-10s observed %d, expected %.4g: %s, no significance", label, n.count(), b.sumOfWeights(),
+          b.count() == 0 ? "no reference events selected" : "the selected reference weights do not sum to a "
+          + "positive yield");
     }
     Map<String, Object> vs = new LinkedHashMap<>();
     for (int k = 0; k < b.upSums().length; k++) {
       double up = b.upSums()[k];
       double down = b.downSums()[k];
       double nominal = b.sumOfWeights();
-      double zUp = up > 0 && b.statisticalError() > 0 ? CountingSignificance.zBiFromBackground(n.count(), up,
+      // the MC error scaled with the shifted yield; defined only when both yields are positive
+      boolean scalable = nominal > 0 && b.statisticalError() > 0;
+      double zUp = up > 0 && scalable ? CountingSignificance.zBiFromBackground(n.count(), up,
           b.statisticalError() * up / nominal).z() : Double.NaN;
-      double zDown = down > 0 && b.statisticalError() > 0 ? CountingSignificance.zBiFromBackground(n.count(), down,
+      double zDown = down > 0 && scalable ? CountingSignificance.zBiFromBackground(n.count(), down,
           b.statisticalError() * down / nominal).z() : Double.NaN;
       o.say("  %-16s expected up %.4g (%+.1f%%): Z_Bi %.2f; down %.4g (%+.1f%%): Z_Bi %.2f", variations.get(k), up,
           100 * (up / nominal - 1), zUp, down, 100 * (down / nominal - 1), zDown);

@@ -189,6 +189,43 @@ class CliTest {
     assertTrue(Files.exists(png));
   }
 
+  /**
+   * Signed zeros and edges (found by a review against a brute-force scan of the same files): x >= 0 holds for
+   * x = -0.0, as in the condition's own arithmetic, so the index's point query must take both zeros; a value on a
+   * histogram edge is in the bin that starts there; a selection whose reference weights sum to zero or less gets
+   * no significance (it crashed); a fit on such weights is an input error.
+   */
+  @Test
+  void signedZerosEdgesAndNonPositiveYields() throws IOException {
+    Files.writeString(dir.resolve("ref.csv"), "event,x,w\n1,0.0,1\n2,-0.0,1\n3,0.5,1\n4,-0.5,1\n5,-0.9,1\n"
+        + "6,2.0,-1\n7,2.0,0.5\n");
+    Files.writeString(dir.resolve("obs.csv"), "event,x\n10,0.00\n11,-0.00\n12,0.25\n13,-0.9\n");
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "x", "--weight", "w",
+        "--allow-negative-weights").code());
+    String[][] cases = {{"x >= 0", "5", "3"}, {"x = 0", "2", "2"}, {"x <= -0", "4", "3"},
+        {"x BETWEEN 0 AND 1", "3", "3"}, {"x = -0", "2", "2"}};
+    for (String[] c : cases) {
+      Run r = run("select", "--index", index.toString(), "--where", c[0], "--json");
+      assertEquals(0, r.code(), r.err());
+      JsonNode cmp = JSON.readTree(r.out()).get("comparisons").get(0);
+      // by hand: reference events with x in the set (2.0 twice for x >= 0), observed likewise
+      assertEquals(Long.parseLong(c[2]), cmp.get("observed").asLong(), c[0]);
+    }
+    Run h = run("hist", "--index", index.toString(), "--column", "x", "--range", "-1:1", "--bins", "20", "--json");
+    assertEquals(0, h.code(), h.err());
+    for (JsonNode bin : JSON.readTree(h.out()).get("bins")) {
+      if (bin.get("lo").asDouble() == -0.9) {
+        assertEquals(1, bin.get("observed").asLong(), bin.toString());
+      }
+    }
+    Run nonPositive = run("select", "--index", index.toString(), "--where", "x > 1", "--json");
+    assertEquals(0, nonPositive.code(), nonPositive.err());
+    Run pair = run("hist", "--index", index.toString(), "--column", "x", "--pair", "followup");
+    assertEquals(ExitCodes.USAGE, pair.code());
+  }
+
   @Test
   void selectReportsObservedExpectedAndLocalSignificance() throws IOException {
     Path index = ingestSamples();

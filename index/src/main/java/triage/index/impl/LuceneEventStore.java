@@ -403,13 +403,17 @@ public final class LuceneEventStore implements EventStore {
         }
         b.add(LongPoint.newRangeQuery(Fields.point(column), lo, hi), BooleanClause.Occur.FILTER);
       } else if (doublePoints) {
-        b.add(DoublePoint.newRangeQuery(Fields.point(column), r.lo(), r.hi()), BooleanClause.Occur.FILTER);
+        // Points order -0 before +0, while the condition's numbers treat them as equal: a bound at zero takes both.
+        b.add(DoublePoint.newRangeQuery(Fields.point(column), r.lo() == 0 ? -0.0 : r.lo(),
+            r.hi() == 0 ? 0.0 : r.hi()), BooleanClause.Occur.FILTER);
       } else {
         // Rounding to float is monotone, so x in [lo, hi] implies (float) x in [(float) lo, (float) hi]: the float
         // points find a superset (a few more events at the edges), the exact check on the binary form keeps the
-        // events whose double value is in the range. Signed zeros come out as with double points: the points
-        // order -0 before +0 and the float of a zero keeps its sign.
-        b.add(FloatPoint.newRangeQuery(Fields.point(column), (float) r.lo(), (float) r.hi()),
+        // events whose double value is in the range. Points order -0 before +0 while the condition treats them as
+        // equal (x >= 0 holds for x = -0.0), so a bound that is a zero of either sign takes both zeros.
+        float lo = (float) r.lo();
+        float hi = (float) r.hi();
+        b.add(FloatPoint.newRangeQuery(Fields.point(column), lo == 0 ? -0.0f : lo, hi == 0 ? 0.0f : hi),
             BooleanClause.Occur.FILTER);
         residuals.add(new Residual(p, null, r.lo(), r.hi()));
       }
@@ -652,6 +656,9 @@ public final class LuceneEventStore implements EventStore {
           int s = Layout.getInt(b, base + Layout.SAMPLE);
           double w = Layout.getDouble(b, base + Layout.WEIGHT);
           int bin = Histogram.binOf(values.value(b, base), bins, lo, hi);
+          if (bin < 0) {
+            return;
+          }
           p.counts()[s][bin]++;
           p.sumW()[s][bin].add(w);
           p.sumW2()[s][bin].add(w * w);

@@ -377,6 +377,11 @@ public final class RatioModel {
     if (doc.parameters() == null || doc.parameterCount() != doc.parameters().length) {
       throw new IllegalArgumentException("parameter count does not match");
     }
+    if (doc.architecture() == null || doc.standardisation() == null || doc.featureNames() == null) {
+      throw new IllegalArgumentException("the model document lacks "
+          + (doc.architecture() == null ? "'architecture'" : doc.standardisation() == null ? "'standardisation'"
+          : "'featureNames'"));
+    }
     return new RatioModel(doc.architecture(), doc.parameters(), doc.standardisation(),
         doc.outputOffset(), doc.featureNames(), doc.training());
   }

@@ -49,6 +49,9 @@ import triage.core.stats.WeightedMoments;
  * A bad row stops the read ({@link BadRowPolicy#FAIL}) or goes to the reject sink ({@link BadRowPolicy#SKIP}).
  */
 public final class EventFileReader {
+  /** Largest id, run or block magnitude: 2^53, below which every whole number is exactly a double. */
+  public static final long MAX_EXACT_INTEGER = 1L << 53;
+
   /** Longest category value, in UTF-8 bytes (a label, not a text; the index keeps each value as one term). */
   public static final int MAX_CATEGORY_BYTES = 1024;
 
@@ -548,17 +551,27 @@ public final class EventFileReader {
 
     private long integer(RowFields record, int at, long line) {
       long fast = fastInteger(record.chars, record.from[at], record.to[at]);
+      long value;
       if (fast != NO_INTEGER) {
-        return fast;
+        value = fast;
+      } else {
+        String text = record.get(at).strip();
+        try {
+          value = Long.parseLong(text);
+        } catch (NumberFormatException e) {
+          problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at),
+              text.isEmpty() ? Kind.EMPTY_VALUE : Kind.NOT_AN_INTEGER, "a whole number");
+          return 0;
+        }
       }
-      String text = record.get(at).strip();
-      try {
-        return Long.parseLong(text);
-      } catch (NumberFormatException e) {
-        problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at),
-            text.isEmpty() ? Kind.EMPTY_VALUE : Kind.NOT_AN_INTEGER, "a whole number");
+      // Ids, runs and blocks meet doubles on their way through selections, exports and region files: beyond 2^53
+      // neighbouring values would merge, so they are refused here rather than altered later.
+      if (value > MAX_EXACT_INTEGER || value < -MAX_EXACT_INTEGER) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at), Kind.NOT_AN_INTEGER,
+            "a whole number of magnitude at most 2^53 = 9007199254740992");
         return 0;
       }
+      return value;
     }
 
     private int category(RowFields record, int k, long line) {

@@ -213,6 +213,16 @@ class EventFileReaderTest {
   }
 
   @Test
+  void idsBeyondTwoToThe53AreRefused() throws IOException {
+    // 2^53 + 1 would merge with 2^53 where ids pass through doubles (selections, exports, region files)
+    InputException e = fails(HEADER + "\n9007199254740993,7,10.5,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 1);
+    assertTrue(e.getMessage().contains("at most 2^53"), e.getMessage());
+    read(write("ok.csv", HEADER + "\n9007199254740992,7,10.5,3,A,1,1,1\n"), Role.REFERENCE,
+        ReadOptions.strict());
+  }
+
+  @Test
   void nonIntegerId() throws IOException {
     InputException e = fails(HEADER + "\n1.5,7,10.5,3,A,1,1,1\n", Role.REFERENCE);
     assertPlace(e, "bad.csv", 2, 1);
