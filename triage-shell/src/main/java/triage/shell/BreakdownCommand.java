@@ -146,11 +146,20 @@ public final class BreakdownCommand implements Callable<Integer> {
         BitSet rm = store.mask(selection, reference);
         double[] rv = store.columns(reference, List.of(by))[0];
         double[] w = store.weights(reference);
+        // compensated sums per value, as everywhere else (plain += gave 152.4999999999999 for 152.5)
+        java.util.Map<Long, triage.core.stats.NeumaierSum[]> sums = new java.util.HashMap<>();
         for (int i = rm.nextSetBit(0); i >= 0; i = rm.nextSetBit(i + 1)) {
-          double[] a = acc.computeIfAbsent((long) rv[i], k -> new double[4]);
-          a[1] += w[i];
-          a[2] += w[i] * w[i];
+          acc.computeIfAbsent((long) rv[i], k -> new double[4]);
+          triage.core.stats.NeumaierSum[] s = sums.computeIfAbsent((long) rv[i],
+              k -> new triage.core.stats.NeumaierSum[] {new triage.core.stats.NeumaierSum(),
+                  new triage.core.stats.NeumaierSum()});
+          s[0].add(w[i]);
+          s[1].add(w[i] * w[i]);
         }
+        sums.forEach((k, s) -> {
+          acc.get(k)[1] = s[0].value();
+          acc.get(k)[2] = s[1].value();
+        });
         acc.forEach((k, a) -> rows.add(new Row(String.valueOf(k), (long) a[0], a[1], a[2], (long) a[3])));
       }
       long totalN = rows.stream().mapToLong(Row::observed).sum();

@@ -219,6 +219,11 @@ public final class FitCommand implements Callable<Integer> {
         o.say("note: t is only comparable with toys fitted to the same stopping rule; a fit that did not converge "
             + "understates t.");
       }
+      if (m.sample(reference).negativeWeights() > 0) {
+        o.say("note: the reference has %d negative weights: where they outweigh the positive ones locally the "
+            + "extended loss has no lower bound inside the clip box, and a very large t would only mean that; "
+            + "check the events with the largest scores.", m.sample(reference).negativeWeights());
+      }
       o.say("scores of every event stored as column score:%s", version);
       Map<String, Object> result = new LinkedHashMap<>();
       result.put("command", "fit");

@@ -48,6 +48,10 @@ final class FrameworkExport {
 
   static void write(Path dir, String name, TrainingData data, FitSettings settings, FitResult result,
            Trajectory trajectory) throws IOException {
+    if (settings.loss() != LossKind.EXTENDED_LIKELIHOOD) {
+      // the trajectory's t is −2 × the training loss, which is t only for the extended loss
+      throw new IllegalArgumentException("the framework export is for the extended loss only, not " + settings.loss());
+    }
     Files.createDirectories(dir);
     Architecture arch = new Architecture(data.features(), settings.hiddenWidths(),
         settings.activation());
