@@ -209,8 +209,10 @@ public final class FitCommand implements Callable<Integer> {
       provenance.put("referenceSha256", m.sample(reference).sha256());
       store.addScores(version, scores, Output.JSON.writeValueAsString(doc));
       o.say("model %s: t = %.4f, %d parameters, %s after %d iterations (%d loss evaluations), %.1f s", version,
-          fit.testStatistic(), model.parameterCount(), fit.converged() ? "converged" : "NOT converged ("
-              + fit.stopReason() + ")", fit.iterations(), fit.lossEvaluations(), fit.elapsedSeconds());
+          fit.testStatistic(), model.parameterCount(), !fit.converged() ? "NOT converged (" + fit.stopReason() + ")"
+              : fit.stopReason() == triage.core.ratio.StopReason.LINE_SEARCH_FAILED
+              ? "converged (small projected gradient, where the line search could not improve further)"
+              : "converged", fit.iterations(), fit.lossEvaluations(), fit.elapsedSeconds());
       if (fit.testStatistic() < 0) {
         o.say("warning: t < 0: the fit ended above the loss of f = 0 (observed and reference alike), so it did not "
             + "minimise the loss (with Adam, a learning rate too large?); this t means nothing.");
