@@ -140,6 +140,15 @@ public final class IngestCommand implements Callable<Integer> {
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
     SampleSpec sampleSpec = inputs.specFile != null ? SampleSpec.read(inputs.specFile) : fromFlags(inputs.flags);
+    java.util.Map<triage.core.sample.Role, String> firstOfRole = new java.util.EnumMap<>(triage.core.sample.Role.class);
+    for (var s : sampleSpec.samples()) {
+      String first = firstOfRole.putIfAbsent(s.role(), s.name());
+      if (first != null) {
+        o.note("note: sample '%s' has the role %s of sample '%s'; the commands use '%s' for that role, and '%s' "
+            + "only where it is named (e.g. calibrate --inject-sample %s)", s.name(), s.role().label(), first, first,
+            s.name(), s.name());
+      }
+    }
     if (threads < 1 || threads > 1024) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--threads must be between 1 and 1024");
     }

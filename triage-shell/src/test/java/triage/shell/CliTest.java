@@ -226,6 +226,21 @@ class CliTest {
     assertEquals(ExitCodes.USAGE, pair.code());
   }
 
+  /** A second sample with a role already taken is kept, reachable by name, and ingest says which one commands use. */
+  @Test
+  void aSecondSampleOfOneRoleIsNamedAtIngest() throws IOException {
+    writeSamples();
+    Files.writeString(dir.resolve("spec.json"), """
+        {"format": "triage-samples/1", "columns": {"features": ["m", "pt"], "id": "event", "run": "run"},
+         "samples": [{"name": "reference", "role": "reference", "file": "ref.csv", "weight": "w"},
+                     {"name": "observed", "role": "observed", "file": "obs.csv"},
+                     {"name": "signal", "role": "reference", "file": "ref.csv", "weight": "w"}]}
+        """);
+    Run r = run("ingest", "--index", dir.resolve("index").toString(), "--spec", dir.resolve("spec.json").toString());
+    assertEquals(0, r.code(), r.err());
+    assertTrue(r.err().contains("'signal' only where it is named"), r.err());
+  }
+
   @Test
   void selectReportsObservedExpectedAndLocalSignificance() throws IOException {
     Path index = ingestSamples();

@@ -65,15 +65,9 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
     }
     samples = List.copyOf(samples);
     Set<String> names = new HashSet<>();
-    Set<Role> roles = new HashSet<>();
     for (SampleSource s : samples) {
       if (!names.add(s.name())) {
         throw new IllegalArgumentException("sample name '" + s.name() + "' is used twice");
-      }
-      // every command reads one sample per role: a second one would be ignored without a word
-      if (s.role() != null && !roles.add(s.role())) {
-        throw new IllegalArgumentException("role '" + s.role().label() + "' is given to two samples; each role "
-            + "takes one file (join the files of one role into one)");
       }
     }
     Set<String> used = new HashSet<>(columns.all());

@@ -60,10 +60,6 @@ class SampleSpecTest {
     assertTrue(e.getMessage().contains("samples"), e.getMessage());
     e = bad(GOOD + "{}");
     assertTrue(e.getMessage().startsWith("spec.json:"), e.getMessage());
-    e = bad(GOOD.replace("{\"name\": \"data\", \"role\": \"observed\", \"file\": \"obs.csv.gz\"}",
-        "{\"name\": \"data\", \"role\": \"observed\", \"file\": \"obs.csv.gz\"}, "
-            + "{\"name\": \"data2\", \"role\": \"observed\", \"file\": \"obs2.csv\"}"));
-    assertTrue(e.getMessage().contains("role 'observed' is given to two samples"), e.getMessage());
   }
 
   @Test
