@@ -142,7 +142,8 @@ public final class LuceneIngest {
         LuceneEventStore.writeManifestCopy(dir, manifest);
         LuceneEventStore.removeStaleSideFiles(dir, manifest);
         rejects.close();
-        if (rejected == 0 && Files.exists(rejectsFile) && Rejects.isRejectsFile(rejectsFile)) {
+        if (rejected == 0 && Files.exists(rejectsFile) && Files.size(rejectsFile) > 0
+            && Rejects.isRejectsFile(rejectsFile)) {
           // an earlier ingest's rejects file (checked above): it no longer describes this index
           Files.delete(rejectsFile);
         }
@@ -485,7 +486,7 @@ public final class LuceneIngest {
       if (Files.isDirectory(file)) {
         throw new InputException(file, "is a folder; the rejects file must be a file path");
       }
-      if (Files.exists(file) && !isRejectsFile(file)) {
+      if (Files.exists(file) && Files.size(file) > 0 && !isRejectsFile(file)) {
         throw new InputException(file, "already exists and is not a rejects file written by triage; choose "
             + "another path for --rejects (triage does not overwrite or remove other files)");
       }

@@ -72,6 +72,18 @@ public final class ToySampler {
     }
     UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(toySeed(runSeed, toy));
     int n = (int) Math.min(weights.length, PoissonSampler.of(rng, expected).sample());
+    double total = 0;
+    double heaviest = 0;
+    for (double w : weights) {
+      total += w;
+      heaviest = Math.max(heaviest, w);
+    }
+    if (expected * heaviest >= total) {
+      // an event that is in every toy (and never in a toy's reference) gives every toy a built-in excess there
+      throw new triage.core.sample.InputException(null, "a reference event carries so much of the weight that it "
+          + "would be in every toy (N_exp·w/Σw ≥ 1): toys drawn from this reference are not null samples; "
+          + "reweight or split the heaviest events");
+    }
     ProportionalDraw plan = ProportionalDraw.plan(weights, n);
     int[] observed = new int[n];
     plan.draw(rng, new int[weights.length], observed);

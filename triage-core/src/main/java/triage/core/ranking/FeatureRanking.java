@@ -18,8 +18,8 @@ import java.util.List;
  *   <li>{@code rawP}, {@code adjustedP}: resampling p-values of D, (k + 1)/(B + 1), raw and maxT-adjusted: a
  *   permutation test of the pooled events when all reference weights are equal, else B null draws from the
  *   weighted reference ({@link ReferenceDrawTest}); NaN when no resampling was asked for, or when the weights
- *   differ and the reference has fewer than twice as many events of non-zero weight as the observed side (too
- *   few to draw pseudo-observed samples from).</li>
+ *   differ and the reference has fewer than twice as many events of non-zero weight as the observed side, or its
+ *   weight is too concentrated in a few events for null draws (see {@link ReferenceDrawTest}).</li>
  * </ul>
  */
 public final class FeatureRanking {

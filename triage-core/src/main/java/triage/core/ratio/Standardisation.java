@@ -110,7 +110,7 @@ public record Standardisation(double[] mean, double[] std) {
       // A feature with one value (over the events that carry weight) has no spread: its weighted mean may come out
       // an ulp off the value and the variance as rounding noise (seen: sd 1.7e-25 for a column of 0.1, which
       // standardised every event to about -8e7 and left the network constant). Such a feature is centred on its
-      // value and keeps scale 1; so does one whose sd is below 1e-12 of its magnitude (cancellation).
+      // value and keeps scale 1; so does one whose sd is within 64 ulp of its magnitude (rounding noise).
       double lo = Double.POSITIVE_INFINITY;
       double hi = Double.NEGATIVE_INFINITY;
       for (int i = 0; i < n; i++) {
@@ -125,7 +125,7 @@ public record Standardisation(double[] mean, double[] std) {
         s[k] = 1.0;
       } else {
         m[k] = mean;
-        s[k] = var > 0 && Double.isFinite(var) && sd > 1e-12 * Math.max(Math.abs(lo), Math.abs(hi)) ? sd : 1.0;
+        s[k] = var > 0 && Double.isFinite(var) && sd > 64 * Math.ulp(Math.max(Math.abs(lo), Math.abs(hi))) ? sd : 1.0;
       }
     }
     return new Standardisation(m, s);

@@ -109,6 +109,9 @@ public record Region(String format, String name, String where, List<Cut> cuts, S
       if (model != null) {
         known.add("score:" + model.version());
       }
+      if (columns.score() != null) {
+        known.add("score:external");
+      }
       for (Cut c : cuts) {
         if (c == null || !known.contains(c.column())) {
           throw new IllegalArgumentException("cut on " + (c == null ? "nothing" : "'" + c.column() + "'")

@@ -60,6 +60,8 @@ public final class RegionApplier {
     }
     if (c.score() != null) {
       kinds.put(c.score(), Where.Kind.NUMBER);
+      // the external score column is also the model version 'external'
+      kinds.put("score:external", Where.Kind.NUMBER);
     }
     for (String k : c.categories()) {
       kinds.put(k, Where.Kind.CATEGORY);
@@ -182,6 +184,7 @@ public final class RegionApplier {
       }
       if (c.score() != null) {
         where.put(c.score(), new int[] {4, 0});
+        where.put("score:external", new int[] {4, 0});
       }
       for (int j = 0; j < variations.size(); j++) {
         where.put(variations.get(j).up(), new int[] {5, j});

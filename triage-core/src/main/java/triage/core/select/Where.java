@@ -177,9 +177,14 @@ public final class Where {
       // values belongs in IN (...), which has no such bound.
       int operators = 0;
       int depth = 0;
-      for (Token t : tokens) {
-        boolean op = t.kind() == 'k' && List.of("AND", "OR", "NOT").contains(t.text())
-            || t.kind() == 'o' && List.of("+", "-", "*", "/").contains(t.text());
+      for (int k = 0; k < tokens.size(); k++) {
+        Token t = tokens.get(k);
+        // a minus sign on a number right after '(' or ',' is the sign of a list value (IN (-1, -2, ...)): not counted
+        boolean sign = t.kind() == 'o' && t.text().equals("-") && k > 0 && k + 1 < tokens.size()
+            && tokens.get(k + 1).kind() == 'n' && tokens.get(k - 1).kind() == 'o'
+            && (tokens.get(k - 1).text().equals("(") || tokens.get(k - 1).text().equals(","));
+        boolean op = !sign && (t.kind() == 'k' && List.of("AND", "OR", "NOT").contains(t.text())
+            || t.kind() == 'o' && List.of("+", "-", "*", "/").contains(t.text()));
         if (op && ++operators > MAX_OPERATORS) {
           throw new WhereException(text, t.pos(), "condition too long: more than " + MAX_OPERATORS + " operators "
               + "(AND, OR, NOT, + - * /); for a list of values use IN (...)");

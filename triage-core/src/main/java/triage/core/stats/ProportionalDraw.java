@@ -64,6 +64,18 @@ public final class ProportionalDraw {
           + " of positive size");
     }
     int items = sizes.length;
+    // in units of the largest size, so that sums of huge sizes cannot overflow
+    double largest = 0;
+    for (double x : sizes) {
+      largest = Math.max(largest, x);
+    }
+    if (largest > 0) {
+      double[] scaled = new double[items];
+      for (int i = 0; i < items; i++) {
+        scaled[i] = sizes[i] / largest;
+      }
+      sizes = scaled;
+    }
     double[] inclusion = new double[items];
     boolean[] certain = new boolean[items];
     int left = n;
@@ -110,6 +122,15 @@ public final class ProportionalDraw {
       throw new IllegalStateException("probability ticks do not add up: " + rest + " left");
     }
     return new ProportionalDraw(inclusion, ticks, certain, n);
+  }
+
+  /** The largest inclusion probability (1 when an item is drawn every time). */
+  public double largestInclusion() {
+    double m = 0;
+    for (double p : inclusion) {
+      m = Math.max(m, p);
+    }
+    return m;
   }
 
   /** Items per draw. */

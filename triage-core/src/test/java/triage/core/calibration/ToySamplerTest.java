@@ -121,6 +121,15 @@ class ToySamplerTest {
     assertEquals(expectedShare, refShare, 0.004);
   }
 
+  /** An event heavy enough to be in every toy is refused with a message (it would be a built-in excess). */
+  @Test
+  void anEventInEveryToyIsRefused() {
+    double[] w = new double[100];
+    java.util.Arrays.fill(w, 0.01);
+    w[0] = 50;
+    assertThrows(InputException.class, () -> ToySampler.draw(w, 20, 1, 0));
+  }
+
   @Test
   void logResumesSurvivesATornLineAndRefusesOtherSettings() throws Exception {
     Path f = dir.resolve("toys.jsonl");

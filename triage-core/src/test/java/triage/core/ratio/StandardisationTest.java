@@ -42,4 +42,19 @@ class StandardisationTest {
       assertEquals(0.0, s.apply(1, c), 0.0);
     }
   }
+
+  /** A real but small spread far from zero keeps its scale: values 1.7e9 + 1e-3·z (sd about 1e-3, 4,000 ulp). */
+  @Test
+  void aSmallSpreadFarFromZeroIsKept() {
+    SplittableRandom r = new SplittableRandom(8);
+    int n = 500;
+    double[] x = new double[n];
+    double[] w = new double[n];
+    for (int i = 0; i < n; i++) {
+      x[i] = 1.7e9 + 1e-3 * r.nextGaussian();
+      w[i] = 1;
+    }
+    Standardisation s = Standardisation.weighted(x, w, 1);
+    assertEquals(1e-3, s.stdAt(0), 2e-4);
+  }
 }

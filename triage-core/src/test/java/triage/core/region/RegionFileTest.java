@@ -60,6 +60,19 @@ class RegionFileTest {
     assertTrue(assertThrows(InputException.class, () -> Region.read(f)).getMessage().contains("says 5 ids"));
     Files.writeString(f, text.replace("\"hi\" : null", "\"hi\" : 0.1"));
     assertTrue(assertThrows(InputException.class, () -> Region.read(f)).getMessage().contains("above hi"));
+    // a cut on the external score column, under its model name, is known when the columns name a score column
+    Region example = Region.read(EXAMPLE);
+    triage.core.sample.Columns c = example.columns();
+    triage.core.sample.Columns withScore = new triage.core.sample.Columns(c.features(), c.id(), c.run(), c.block(),
+        c.categories(), "s");
+    Region ext = new Region(example.format(), example.name(), "score:external > 0.5", java.util.List.of(
+        new Region.Cut("score:external", 0.5, null)), example.residual(), withScore, example.variations(), null,
+        example.discovery(), example.provenance(), example.discoveryIds(), example.cautions());
+    assertEquals("score:external", ext.cuts().get(0).column());
+    assertThrows(IllegalArgumentException.class, () -> new Region(example.format(), example.name(),
+        "score:external > 0.5", java.util.List.of(new Region.Cut("score:external", 0.5, null)), example.residual(),
+        c, example.variations(), null, example.discovery(), example.provenance(), example.discoveryIds(),
+        example.cautions()));
 
     // a score region: the model must match its SHA-256 and read the region's features
     Region r = Region.read(EXAMPLE);

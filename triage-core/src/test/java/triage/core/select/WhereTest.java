@@ -128,6 +128,11 @@ class WhereTest {
       in.append(", ").append(i);
     }
     Where.parse(in.append(")").toString(), COLUMNS);
+    StringBuilder negative = new StringBuilder("m IN (-1");
+    for (int i = 2; i <= 1200; i++) {
+      negative.append(", -").append(i);
+    }
+    Where.parse(negative.append(")").toString(), COLUMNS);
   }
 
   @Test

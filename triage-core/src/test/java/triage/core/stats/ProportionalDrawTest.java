@@ -100,6 +100,15 @@ class ProportionalDrawTest {
   }
 
   @Test
+  void hugeSizesDoNotOverflow() {
+    ProportionalDraw plan = ProportionalDraw.plan(new double[] {1e308, 1e308, 1e308, 5e307}, 1);
+    // analytic: π = 1e308 / (3 × 1e308 + 5e307) = 1/3.5
+    assertEquals(1 / 3.5, plan.inclusion(0), 1e-15);
+    int[] out = new int[1];
+    plan.draw(RandomSource.SPLIT_MIX_64.create(1), new int[4], out);
+  }
+
+  @Test
   void refusesWhatCannotBeDrawn() {
     assertThrows(IllegalArgumentException.class, () -> ProportionalDraw.plan(new double[] {1, 0, 0}, 2));
     assertThrows(IllegalArgumentException.class, () -> ProportionalDraw.plan(new double[] {1, -1}, 1));
