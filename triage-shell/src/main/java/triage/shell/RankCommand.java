@@ -192,7 +192,8 @@ public final class RankCommand implements Callable<Integer> {
       }
       o.say("note: 'p raw' is the resampling p-value of the KS distance, (k+1)/(B+1) (label permutations when the "
           + "reference weights are all equal, else null samples drawn from the weighted reference; '-' when the "
-          + "weights differ and the reference inside has fewer than twice the observed events), and 'p adj' the same "
+          + "weights differ and the reference inside has fewer than twice the observed events, or its weight sits in "
+          + "too few events for such draws), and 'p adj' the same "
           + "adjusted for the %d features (maxT); 'KS p asym' uses effective sample sizes and is a guide only. "
           + "All are local to this selection.", features.size());
       o.result(result);
