@@ -45,7 +45,9 @@ import org.apache.commons.numbers.gamma.RegularizedGamma;
  *
  * <p>Far tail: where the p-value of Z_Bi (or of its Poisson limit) is below 1e-290, Z comes from ln p computed
  * in logarithms ({@link LogTail}), so strong excesses keep finite, ordered significances (tested to Z = 90 against
- * mpmath); the reported p-value itself may then be 0.
+ * mpmath); the reported p-value itself may then be 0. For a deficit (p above 1/2) Z is −Φ⁻¹(1 − q) from the
+ * complement q = 1 − p (regularised incomplete beta or gamma complement), so it stays finite where p rounds to 1
+ * (tested to Z = −24 against SciPy).
  *
  * <p>Accuracy: the function {@code h(x) = (1+x) ln(1+x) - x} common to the first two formulas is evaluated by
  * its power series {@code sum_{k>=2} (-1)^k x^k / (k(k-1))} for {@code |x| < 0.1}, so Z keeps full relative
@@ -185,6 +187,11 @@ public final class CountingSignificance {
         // p (nearly) underflows: Z from ln p, so that strong excesses keep finite, ordered significances
         return new ZBiResult(p, LogTail.zFromLogP(LogTail.logRegularizedBeta(x, nOn, nOff + 1)), nOn, nOff, tau);
       }
+      if (p > 0.5) {
+        // a deficit: Z = −Φ⁻¹(1 − q) from the complement q = 1 − p, which keeps its digits where p rounds to 1
+        final double q = Math.min(1, Math.max(0, RegularizedBeta.complement(x, nOn, nOff + 1)));
+        return new ZBiResult(p, -Significance.zFromP(q), nOn, nOff, tau);
+      }
     }
     return new ZBiResult(p, Significance.zFromP(p), nOn, nOff, tau);
   }
@@ -206,7 +213,9 @@ public final class CountingSignificance {
     if (sigmaB == 0 || !Double.isFinite(tau)) {
       // Poisson limit: P(N >= n | b) = P(n, b) (regularized lower incomplete gamma)
       final double p = n == 0 ? 1 : RegularizedGamma.P.value(n, b);
+      // a deficit (p > 1/2) from the complement Q(n, b), which keeps its digits where p rounds to 1
       final double z = p < UNDERFLOW && b < n + 1 ? LogTail.zFromLogP(LogTail.logLowerGamma(n, b))
+          : p > 0.5 && n > 0 ? -Significance.zFromP(RegularizedGamma.Q.value(n, b))
           : Significance.zFromP(p);
       return new ZBiResult(p, z, n, Double.POSITIVE_INFINITY, Double.POSITIVE_INFINITY);
     }

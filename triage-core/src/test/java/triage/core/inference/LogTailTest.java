@@ -43,4 +43,20 @@ class LogTailTest {
     assertTrue(Double.isFinite(got), kind + " Z is finite");
     assertEquals(z, got, 1e-12 * z, kind + " Z");
   }
+
+  // z-deficit.csv: [C] q = 1 − p by scipy.special.betaincc / gammaincc and Z = −scipy.stats.norm.isf(q) (SciPy
+  // 1.17.1, generate_fixtures.py section 8): deficits, where p rounds to 1 and Z came out −∞.
+  static Stream<Arguments> deficit() {
+    return Fixtures.rowsWithText("z-deficit.csv").stream()
+        .map(r -> Arguments.of(r[0], Double.parseDouble(r[1]), Double.parseDouble(r[2]), Double.parseDouble(r[3]),
+            Double.parseDouble(r[5])));
+  }
+
+  @ParameterizedTest
+  @MethodSource
+  void deficit(String kind, double n, double b, double sigma, double z) {
+    double got = CountingSignificance.zBiFromBackground(n, b, kind.equals("zbi") ? sigma : 0).z();
+    // tolerance: 1e-10 relative (the complements are accurate to about 1e-14; Z amplifies little)
+    assertEquals(z, got, 1e-10 * Math.abs(z), kind + " deficit Z");
+  }
 }

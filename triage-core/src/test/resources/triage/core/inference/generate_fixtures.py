@@ -191,6 +191,23 @@ for t, nu in [(1600, 3), (5000, 66), (3000, 1)]:
     t, nu = mp.mpf(t), mp.mpf(nu)
     lp = mp.log(mp.gammainc(nu / 2, t / 2, mp.inf, regularized=True))
     rows.append(["chi2", float(t), float(nu), 0.0, float(lp), float(z_of_logp(lp))])
+# deficits: p rounds to 1, so Z = -norm.isf(q) with q = 1 - p the lower tail, from SciPy's complements
+# (special.betaincc and special.gammaincc, double precision; q here is far above the underflow)
+deficit = []
+for n, b, sig in [(772, 1228, 44), (50, 100, 3), (1000, 2000, 10)]:
+    tau = b / sig ** 2
+    q = float(special.betaincc(n, tau * b + 1, 1 / (1 + tau)))
+    deficit.append(["zbi", float(n), float(b), float(sig), q, float(-stats.norm.isf(q))])
+for n, b in [(700, 1228), (50, 60), (10, 40)]:
+    q = float(special.gammaincc(n, b))
+    deficit.append(["poisson", float(n), float(b), 0.0, q, float(-stats.norm.isf(q))])
+with open("z-deficit.csv", "w") as f:
+    f.write(VERSIONS)
+    f.write("# deficits: q = 1 - p by scipy.special.betaincc / gammaincc, z = -scipy.stats.norm.isf(q); kind zbi "
+            "(a = n, b = b, with sigma_b), poisson (a = n, b = b)\n")
+    f.write("kind,a,b,sigma_b,q,z\n")
+    for r in deficit:
+        f.write(r[0] + "," + ",".join(repr(float(v)) for v in r[1:]) + "\n")
 with open("z-underflow.csv", "w") as f:
     f.write(VERSIONS)
     f.write("# ln p in mpmath (60 digits) and z solving ln(erfc(z/sqrt2)/2) = ln p; kind zbi (a = n, b = b, with sigma_b), "
