@@ -23,8 +23,9 @@ import triage.core.inference.Significance;
  *   independent fluctuations of n, b (MC statistical error σ_stat), n_d and b_d (σ_d),
  *   σ_z² = (b + s_pred) + (n_d/b_d)² σ_stat² + (b/b_d)² n_d + (b n_d/b_d²)² σ_d² (the numerator is
  *   n − n_d·b/b_d, so b enters with the factor n_d/b_d). A systematic variation that moves b and b_d by the same
- *   relative amount cancels in n − n_d·b/b_d, so σ_syst is left out. A Gaussian approximation, stated as
- *   such;</li>
+ *   relative amount cancels in n − n_d·b/b_d, so σ_syst is left out. The MC errors of b and b_d are taken as
+ *   independent (separate simulated samples); if the follow-up reference is the discovery's own simulated file,
+ *   they are correlated and σ_z is overstated. A Gaussian approximation, stated as such;</li>
  *   <li>growth for 5σ: the factor k by which the follow-up sample would have to grow (n, b, σ_stat scale with k,
  *   relative systematics stay) for the median Asimov significance of s_pred·k to reach 5.</li>
  * </ul>
