@@ -218,15 +218,9 @@ public final class MapCommand implements Callable<Integer> {
     return ExitCodes.OK;
   }
 
-  /** The cell of a value, corrected against the printed edges (a value on an edge is in the cell it starts). */
+  /** The cell of a value (cells by their printed edges, as a histogram's bins); values outside go to the edge cells. */
   private int cell(double v, double lo, double hi) {
-    int k = Math.min(bins - 1, Math.max(0, (int) ((v - lo) / (hi - lo) * bins)));
-    if (k + 1 < bins && v >= edge(lo, hi, k + 1)) {
-      k++;
-    } else if (k > 0 && v < edge(lo, hi, k)) {
-      k--;
-    }
-    return k;
+    return Math.min(bins - 1, Math.max(0, triage.index.Histogram.binOf(v, bins, lo, hi) - 1));
   }
 
   private double edge(double lo, double hi, int c) {

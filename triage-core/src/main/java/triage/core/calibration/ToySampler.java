@@ -45,10 +45,7 @@ public final class ToySampler {
 
   /** The seed of toy k in a run: a SplitMix64-style mix of both, so neighbouring toys are unrelated. */
   public static long toySeed(long runSeed, long toy) {
-    long z = runSeed + 0x9E3779B97F4A7C15L * (toy + 1);
-    z = (z ^ (z >>> 30)) * 0xBF58476D1CE4E5B9L;
-    z = (z ^ (z >>> 27)) * 0x94D049BB133111EBL;
-    return z ^ (z >>> 31);
+    return ProportionalDraw.streamSeed(runSeed, toy);
   }
 
   /**

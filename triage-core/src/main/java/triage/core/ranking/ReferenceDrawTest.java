@@ -119,6 +119,8 @@ final class ReferenceDrawTest {
     final double[] a = new double[BLOCK];
     final double[] c = new double[BLOCK];
     final double[][] d = new double[nf][BLOCK];
+    // one shuffle scratch per lane, reused by every block (a draw resets it, so results do not depend on reuse)
+    final int[][] scratch = new int[BLOCK][n];
     for (int b0 = 0; b0 < draws; b0 += BLOCK) {
       triage.core.Cancellation.check();
       final int nb = Math.min(BLOCK, draws - b0);
@@ -126,8 +128,8 @@ final class ReferenceDrawTest {
       // The block's draws, each from its own stream (in parallel: they do not depend on each other).
       final int[][] chosen = new int[nb][observedCount];
       IntStream.range(0, nb).parallel().forEach(j -> {
-        UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(drawSeed(seed, first + j));
-        plan.draw(rng, new int[n], chosen[j]);
+        UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(ProportionalDraw.streamSeed(seed, first + j));
+        plan.draw(rng, scratch[j], chosen[j]);
       });
       java.util.Arrays.fill(packed, (byte) 0);
       for (int j = 0; j < nb; j++) {
@@ -172,14 +174,6 @@ final class ReferenceDrawTest {
       adj[f] = (maxCount[f] + 1.0) / (draws + 1.0);
     }
     return new MaxTPermutationTest.Result(statistics, raw, adj, draws);
-  }
-
-  /** The seed of draw b: a SplitMix64-style mix of the seed and b. */
-  static long drawSeed(long seed, long b) {
-    long z = seed + 0x9E3779B97F4A7C15L * (b + 1);
-    z = (z ^ (z >>> 30)) * 0xBF58476D1CE4E5B9L;
-    z = (z ^ (z >>> 27)) * 0x94D049BB133111EBL;
-    return z ^ (z >>> 31);
   }
 
 }

@@ -133,6 +133,17 @@ public final class ProportionalDraw {
     return m;
   }
 
+  /**
+   * The seed of the k-th random stream of a run: a SplitMix64-style mix of both, so that neighbouring streams are
+   * unrelated and each draw (or toy) is reproducible on its own.
+   */
+  public static long streamSeed(long seed, long k) {
+    long z = seed + 0x9E3779B97F4A7C15L * (k + 1);
+    z = (z ^ (z >>> 30)) * 0xBF58476D1CE4E5B9L;
+    z = (z ^ (z >>> 27)) * 0x94D049BB133111EBL;
+    return z ^ (z >>> 31);
+  }
+
   /** Items per draw. */
   public int size() {
     return size;

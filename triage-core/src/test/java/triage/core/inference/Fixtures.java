@@ -16,32 +16,15 @@ final class Fixtures {
 
   /** Rows of numbers; '#' lines and the header line are skipped. */
   static List<double[]> rows(String resource) {
-    try (InputStream in = Fixtures.class.getResourceAsStream(resource)) {
-      if (in == null) {
-        throw new IllegalStateException("missing fixture " + resource);
+    final List<double[]> rows = new ArrayList<>();
+    for (final String[] f : rowsWithText(resource)) {
+      final double[] v = new double[f.length];
+      for (int i = 0; i < f.length; i++) {
+        v[i] = Double.parseDouble(f[i]);
       }
-      final BufferedReader r = new BufferedReader(new InputStreamReader(in, StandardCharsets.UTF_8));
-      final List<double[]> rows = new ArrayList<>();
-      boolean header = true;
-      for (String line = r.readLine(); line != null; line = r.readLine()) {
-        if (line.startsWith("#") || line.isBlank()) {
-          continue;
-        }
-        if (header) {
-          header = false;
-          continue;
-        }
-        final String[] f = line.split(",");
-        final double[] v = new double[f.length];
-        for (int i = 0; i < f.length; i++) {
-          v[i] = Double.parseDouble(f[i]);
-        }
-        rows.add(v);
-      }
-      return rows;
-    } catch (IOException e) {
-      throw new UncheckedIOException(e);
+      rows.add(v);
     }
+    return rows;
   }
 
   /** Rows as text fields (for fixtures with a text column); '#' lines and the header line are skipped. */
