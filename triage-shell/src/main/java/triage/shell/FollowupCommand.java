@@ -159,9 +159,12 @@ public final class FollowupCommand implements Callable<Integer> {
     o.say("discovery     n = %d, b = %.4g (local Z_Bi %.2f, optimised on those data); predicted follow-up "
         + "excess %.3g; compatibility z = %.2f", d.observed(), d.expected(), d.localZBi(), f.predictedSignal(),
         f.compatibilityZ());
-    if (Double.isFinite(f.growthFor5Sigma())) {
-      o.say("sensitivity   the follow-up sample would have to grow by %.3g× for an expected 5σ",
-          f.growthFor5Sigma());
+    if (f.growthFor5Sigma() == 1) {
+      o.say("sensitivity   at its present size the follow-up sample gives an expected 5σ or more for the "
+          + "predicted excess (which carries the discovery's upward bias)");
+    } else if (Double.isFinite(f.growthFor5Sigma())) {
+      o.say("sensitivity   the follow-up sample would have to grow by %.3g× for an expected 5σ for the predicted "
+          + "excess (which carries the discovery's upward bias)", f.growthFor5Sigma());
     }
     o.say("note: a p-value is not the probability that a signal is real; the discovery significance is biased "
         + "upwards, this one is not (the region was frozen before these data were read). Defer to your "

@@ -432,6 +432,16 @@ class CliTest {
     assertEquals(2, j.get("observed").asLong());
     assertEquals(3.0, j.get("expected").asDouble(), 0);
     assertEquals(Math.sqrt(5), j.get("statError").asDouble(), 1e-15);
+    Run human = run("followup", "--region", region.toString(), "--reference", dir.resolve("fref.csv").toString(),
+        "--weight", "w", "--observed", dir.resolve("fobs.csv").toString());
+    assertEquals(0, human.code(), human.err());
+    double growth = j.get("growthFor5Sigma").asDouble(Double.NaN);
+    if (growth == 1) {
+      assertTrue(human.out().contains("at its present size the follow-up sample gives an expected 5σ"), human.out());
+    } else if (Double.isFinite(growth)) {
+      assertTrue(human.out().contains("would have to grow by"), human.out());
+    }
+    assertTrue(!Double.isFinite(growth) || human.out().contains("carries the discovery's upward bias"), human.out());
     // Reusing the discovery observed file is refused, and allowed only on request (and recorded).
     Run reuse = run("followup", "--region", region.toString(), "--reference", dir.resolve("fref.csv").toString(),
         "--weight", "w", "--observed", dir.resolve("obs.csv").toString());

@@ -41,7 +41,9 @@ import triage.core.stats.WeightedMoments;
  * <ul>
  *   <li>the file exists, is not empty, and its first line is a header naming every declared column once;</li>
  *   <li>every row has as many fields as the header;</li>
- *   <li>features, weights, variation weights and the score are finite decimal numbers (no NaN, no ±Infinity);</li>
+ *   <li>features, weights, variation weights and the score are finite decimal numbers (no NaN, no ±Infinity),
+ *   within the range of doubles (text that would round to ±infinity, or to zero without being zero, is
+ *   rejected as {@code out-of-range} rather than altered);</li>
  *   <li>id, run and block are whole numbers; categories are not empty;</li>
  *   <li>nominal and variation weights are positive unless {@link WeightPolicy#ANY_FINITE} is chosen;</li>
  *   <li>the event id was not seen before in this file.</li>
@@ -324,12 +326,15 @@ public final class EventFileReader {
             record = it.next();
           } catch (UncheckedIOException e) {
             String why = rootMessage(e);
+            long at = linesBefore + lineBefore + 1;
             // the parser's own wording counts lines from where it was started, not from the file's start
             if (why != null && why.contains("EOF reached before encapsulated token finished")) {
-              why = "a quoted field that starts on this line is not closed before the end of the file (expected a "
-                  + "closing '\"'; a row cannot be set aside when its end cannot be found)";
+              long[] open = openQuote(file, delimiter, at);
+              throw new InputException(file, open[0], (int) open[1], "cannot parse the row: a quoted field that "
+                  + "starts here is not closed before the end of the file (expected a closing '\"'; a row cannot "
+                  + "be set aside when its end cannot be found)", e);
             }
-            throw new InputException(file, linesBefore + lineBefore + 1, 0, "cannot parse the row: " + why, e);
+            throw new InputException(file, at, 0, "cannot parse the row: " + why, e);
           }
           long line = linesBefore + lineBefore + 1;
           lineBefore = parser.getCurrentLineNumber();
@@ -341,6 +346,67 @@ public final class EventFileReader {
         throw new InputException(file, 0, 0, "cannot read: " + rootMessage(e), e);
       }
       flushBatch();
+    }
+
+    /**
+     * Where the quote left open at the end of the file starts: {line, field} (1-based), scanning the record that
+     * starts on {@code line} by the same rules as the parser (a quote opens a field only at its start, two quotes
+     * inside a quoted field stand for one). Reads the file again; used only to word the error. If the scan finds
+     * no open quote (it should not happen), the field is 0.
+     */
+    private static long[] openQuote(Path file, char delimiter, long line) {
+      try (InputStream raw = new BufferedInputStream(Files.newInputStream(file), 1 << 16)) {
+        raw.mark(2);
+        boolean gzip = raw.read() == 0x1f && raw.read() == 0x8b;
+        raw.reset();
+        InputStream in = gzip ? new GZIPInputStream(raw, 1 << 16) : raw;
+        Reader r = new BufferedReader(new InputStreamReader(in, StandardCharsets.UTF_8), 1 << 16);
+        long current = 1;
+        int c;
+        while (current < line && (c = r.read()) >= 0) {
+          if (c == '\n') {
+            current++;
+          }
+        }
+        long openLine = line;
+        int field = 1;
+        int openField = 0;
+        boolean fieldStart = true;
+        boolean quoted = false;
+        while ((c = r.read()) >= 0) {
+          if (quoted) {
+            if (c == '"') {
+              r.mark(1);
+              if (r.read() != '"') {
+                r.reset();
+                quoted = false;
+                openField = 0;
+              }
+            } else if (c == '\n') {
+              current++;
+            }
+            continue;
+          }
+          if (c == '"' && fieldStart) {
+            quoted = true;
+            openField = field;
+            openLine = current;
+          } else if (c == delimiter) {
+            field++;
+            fieldStart = true;
+            continue;
+          } else if (c == '\n') {
+            current++;
+            field = 1;
+            fieldStart = true;
+            continue;
+          }
+          fieldStart = false;
+        }
+        return quoted ? new long[] {openLine, openField} : new long[] {line, 0};
+      } catch (IOException e) {
+        return new long[] {line, 0};
+      }
     }
 
     private static String rootMessage(Throwable e) {
@@ -520,10 +586,20 @@ public final class EventFileReader {
       }
       String text = record.get(at);
       double v = parseNumber(text);
+      String t = text.strip();
+      if (v == 0 && hasNonZeroDigit(t)) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), text, Kind.OUT_OF_RANGE,
+            "a number that is zero or of magnitude at least 4.9e-324 (this one would round to 0)");
+        return 0;
+      }
       if (Double.isFinite(v)) {
         return v;
       }
-      String t = text.strip();
+      if (Double.isInfinite(v) && isDigitText(t)) {
+        problem = new RowProblem(file, line, at + 1, header.get(at), text, Kind.OUT_OF_RANGE,
+            "a number of magnitude at most 1.8e308 (this one would round to infinity)");
+        return 0;
+      }
       if (t.isEmpty()) {
         problem = new RowProblem(file, line, at + 1, header.get(at), text, Kind.EMPTY_VALUE, "a finite number");
       } else if (Double.isNaN(v) && !isNanText(t)) {
@@ -534,6 +610,26 @@ public final class EventFileReader {
             "a finite number (NaN and infinities are not accepted)");
       }
       return 0;
+    }
+
+    /** Whether the significand of a decimal number (the text before an exponent) has a digit 1–9. */
+    private static boolean hasNonZeroDigit(String t) {
+      for (int i = 0; i < t.length(); i++) {
+        char c = t.charAt(i);
+        if (c == 'e' || c == 'E') {
+          return false;
+        }
+        if (c >= '1' && c <= '9') {
+          return true;
+        }
+      }
+      return false;
+    }
+
+    /** Whether the text is a decimal number (ends in a digit or a point) rather than a spelling of infinity. */
+    private static boolean isDigitText(String t) {
+      char last = t.charAt(t.length() - 1);
+      return last >= '0' && last <= '9' || last == '.';
     }
 
     private static boolean isNanText(String t) {

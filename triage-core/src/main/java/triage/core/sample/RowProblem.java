@@ -27,6 +27,11 @@ public record RowProblem(Path file, long line, int column, String columnName, St
     NOT_A_NUMBER("not-a-number"),
     /** A numeric field holds NaN or ±Infinity. */
     NOT_FINITE("not-finite"),
+    /**
+     * A numeric field holds a decimal number outside the range of doubles: its magnitude rounds to infinity
+     * (above about 1.8e308) or, not being zero, to zero (below about 4.9e-324).
+     */
+    OUT_OF_RANGE("out-of-range"),
     /** An integer field (id, run, block) does not parse as a whole number. */
     NOT_AN_INTEGER("not-an-integer"),
     /** A weight is zero or negative and such weights were not allowed. */

@@ -180,6 +180,24 @@ class EventFileReaderTest {
     assertTrue(e.getMessage().contains("expected a finite number"), e.getMessage());
     InputException overflow = fails(HEADER + "\n1,7,1e999,3,A,1,1,1\n", Role.REFERENCE);
     assertPlace(overflow, "bad.csv", 2, 3);
+    assertTrue(overflow.getMessage().contains("found '1e999', expected a number of magnitude at most 1.8e308"),
+        overflow.getMessage());
+  }
+
+  @Test
+  void numbersThatRoundToZeroAreRefusedNotAltered() throws IOException {
+    // IEEE 754 binary64: the smallest subnormal is 2^-1074 ≈ 4.94e-324, and a decimal below half of it rounds to
+    // 0 (analytic). Such a value is an out-of-range row, not a silent zero.
+    InputException e = fails(HEADER + "\n1,7,10.5,-1e-400,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 2, 4);
+    assertTrue(e.getMessage().contains("found '-1e-400', expected a number that is zero or of magnitude at least"),
+        e.getMessage());
+    InputException weight = fails(HEADER + "\n1,7,10.5,3,A,0.00001e-320,1,1\n", Role.REFERENCE);
+    assertPlace(weight, "bad.csv", 2, 6);
+    // zeros in any spelling and the smallest subnormal are values, kept as written
+    Path f = write("tiny.csv", HEADER + "\n1,7,0e-400,-0.000e5,A,1,1,1\n2,7,4.9e-324,1e-310,A,1,1,1\n");
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict());
+    assertEquals(List.of(0.0, Double.MIN_VALUE), c.m);
   }
 
   @Test
@@ -266,12 +284,15 @@ class EventFileReaderTest {
   @Test
   void unterminatedQuoteIsReportedWithItsLine() throws IOException {
     InputException e = fails(HEADER + "\n1,7,10.5,3,\"A,1,1,1\n", Role.REFERENCE);
-    assertTrue(e.getMessage().contains("bad.csv:2"), e.getMessage());
+    assertPlace(e, "bad.csv", 2, 5);
     assertTrue(e.getMessage().contains("not closed before the end of the file"), e.getMessage());
     // further down the file too (the parser that reads quoted rows starts mid-file)
     InputException later = fails(HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,10.5,3,A,1,1,1\n3,7,10.5,3,\"A,1,1,1\n",
         Role.REFERENCE);
-    assertTrue(later.getMessage().contains("bad.csv:4"), later.getMessage());
+    assertPlace(later, "bad.csv", 4, 5);
+    // the open quote is found past a closed quoted field that spans lines and an escaped quote
+    InputException past = fails(HEADER + "\n1,7,10.5,3,\"A\nB\"\"\",1,\"1,1\n2,7,1,1,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(past, "bad.csv", 3, 7);
     assertFalse(later.getMessage().contains("startline"), later.getMessage());
   }
 
