@@ -216,10 +216,10 @@ public final class BreakdownCommand implements Callable<Integer> {
         o.say("  … %d more values (--top, or --json for all)", sorted.size() - top);
       }
       o.say("share of the observed events selected: %.4g overall; same share in every %s? Pearson χ² = %.1f, "
-          + "G = %.1f for %d dof, p = %.3g (G: %.3g)", totalAll > 0 ? (double) totalN / totalAll : Double.NaN, by,
-          share.pearson(), share.g(), share.dof(), share.pearsonP(), share.gP());
-      o.say("observed/expected the same in every %s? χ² = %.1f for %d dof, p = %.3g; the top %d value%s hold%s "
-          + "%.0f%% of the excess", by, chi2, Math.max(0, k - 1), p, Math.min(3, sorted.size()),
+          + "G = %.1f for %d dof, p %s (G: %s)", totalAll > 0 ? (double) totalN / totalAll : Double.NaN, by,
+          share.pearson(), share.g(), share.dof(), Output.pEquals(share.pearsonP()), Output.p(share.gP()));
+      o.say("observed/expected the same in every %s? χ² = %.1f for %d dof, p %s; the top %d value%s hold%s "
+          + "%.0f%% of the excess", by, chi2, Math.max(0, k - 1), Output.pEquals(p), Math.min(3, sorted.size()),
           sorted.size() == 1 ? "" : "s", sorted.size() == 1 ? "s" : "", excess != 0 ? 100 * top3 / excess
           : Double.NaN);
       List<String> worst = new ArrayList<>();

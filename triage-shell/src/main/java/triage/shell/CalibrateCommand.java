@@ -311,10 +311,11 @@ public final class CalibrateCommand implements Callable<Integer> {
         seed, seconds);
     o.say("headline   %s", s.headline());
     if (s.fit() != null) {
-      o.say("χ² fit     ν = %.2f ± %.2f (KS goodness of fit p = %.3g); asymptotic p = %.3g, Z = %.2f",
-          s.fit().dof(), s.fit().standardError(), s.fit().ksPValue(), s.pFitted(), s.zFitted());
+      o.say("χ² fit     ν = %.2f ± %.2f (KS goodness of fit p = %.3g); asymptotic p %s, Z = %.2f",
+          s.fit().dof(), s.fit().standardError(), s.fit().ksPValue(), Output.pEquals(s.pFitted()), s.zFitted());
     }
-    o.say("Wilks      χ²(%d parameters): p = %.3g, Z = %.2f", s.parameters(), s.pParameters(), s.zParameters());
+    o.say("Wilks      χ²(%d parameters): p %s, Z = %.2f", s.parameters(), Output.pEquals(s.pParameters()),
+        s.zParameters());
     if (unconverged > 0) {
       s.warnings().add(unconverged + " of " + ts.length + " toys did not meet the stopping rule (like the data "
           + "fit, if it did not): t is understated alike in both");

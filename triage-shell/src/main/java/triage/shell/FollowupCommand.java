@@ -144,8 +144,8 @@ public final class FollowupCommand implements Callable<Integer> {
       o.say("  %-16s expected up %.4g, down %.4g", v.getKey(), v.getValue()[0], v.getValue()[1]);
     }
     if (f.expected() > 0) {
-      o.say("significance  Z_Bi = %.2f (one-sided p = %.3g); Asimov Z with σ_b at s = n − b: %.2f", f.zBi(),
-          f.pBi(), f.zAsimov());
+      o.say("significance  Z_Bi = %.2f (one-sided p %s); Asimov Z with σ_b at s = n − b: %.2f", f.zBi(),
+          Output.pEquals(f.pBi()), f.zAsimov());
     } else {
       o.say("significance  none: the follow-up reference has no events in the region (expected 0), so the %d "
           + "observed events have no background estimate to be compared with (a larger reference sample would "

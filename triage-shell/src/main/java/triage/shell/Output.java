@@ -84,6 +84,19 @@ public final class Output {
   private static final java.util.regex.Pattern TABLE_ROW = java.util.regex.Pattern.compile("\\S {2,}\\S");
 
   /** Wraps prose at spaces, continuation lines indented two more than the first. */
+  /**
+   * A p-value for people to read: three significant digits, or "< 1e-300" when it is below the range of doubles
+   * and has rounded to 0 (printing "0.00" would claim a certainty no test gives).
+   */
+  static String p(double value) {
+    return value == 0 ? "< 1e-300" : String.format(java.util.Locale.ROOT, "%.3g", value);
+  }
+
+  /** "= p" with {@link #p}, or "< 1e-300" for a p-value that has rounded to 0. */
+  static String pEquals(double value) {
+    return value == 0 ? p(value) : "= " + p(value);
+  }
+
   static void wrap(PrintWriter w, String line, int width) {
     int lead = 0;
     while (lead < line.length() && line.charAt(lead) == ' ') {

@@ -195,7 +195,10 @@ public final class RankCommand implements Callable<Integer> {
           + "weights differ and the reference inside has fewer than twice the observed events, or its weight sits in "
           + "too few events for such draws), and 'p adj' the same "
           + "adjusted for the %d features (maxT); 'KS p asym' uses effective sample sizes and is a guide only. "
-          + "All are local to this selection.", features.size());
+          + "All are local to this selection.%s", features.size(), versus != Versus.inside
+          ? " The comparison with all reference events has no resampling p-values by design: the selection's own "
+          + "cuts make its events differ there, so only the distances (and the asymptotic p as a guide) rank the "
+          + "features." : "");
       o.result(result);
     }
     return ExitCodes.OK;
@@ -235,8 +238,8 @@ public final class RankCommand implements Callable<Integer> {
     o.say("  %-14s %8s %10s %8s %10s %9s %8s %8s", "feature", "KS D", "|AUC-0.5|", "W1/sd", "JS (nats)", "KS p asym",
         "p raw", "p adj");
     for (FeatureRanking.Row r : rows) {
-      o.say("  %-14s %8.4f %10.4f %8.4f %10.5f %9.3g %8s %8s", r.feature(), r.ks(), r.aucSeparation(),
-          r.wasserstein(), r.jensenShannon(), r.ksAsymptoticP(), p(r.rawP()), p(r.adjustedP()));
+      o.say("  %-14s %8.4f %10.4f %8.4f %10.5f %9s %8s %8s", r.feature(), r.ks(), r.aucSeparation(),
+          r.wasserstein(), r.jensenShannon(), Output.p(r.ksAsymptoticP()), p(r.rawP()), p(r.adjustedP()));
     }
   }
 

@@ -128,9 +128,9 @@ public final class SelectCommand implements Callable<Integer> {
       j.put("localZBi", zbi.z());
       j.put("localPBi", zbi.pValue());
       j.put("localZKnownBackground", zlr);
-      o.say("%-10s observed %d, expected %.4g ± %.2g (MC stat.), excess %+.4g; local Z_Bi = %.2f (p = %.3g); "
+      o.say("%-10s observed %d, expected %.4g ± %.2g (MC stat.), excess %+.4g; local Z_Bi = %.2f (p %s); "
           + "local Z with b known = %.2f", label, n.count(), b.sumOfWeights(), b.statisticalError(), excess, zbi.z(),
-          zbi.pValue(), zlr);
+          Output.pEquals(zbi.pValue()), zlr);
     } else {
       j.put("localZBi", Double.NaN);
       j.put("localPBi", Double.NaN);

@@ -70,4 +70,13 @@ class OutputTest {
     String row = "x".repeat(300) + "  y";
     assertEquals(row + System.lineSeparator(), fitted(0, row));
   }
+
+  @Test
+  void pValuesThatRoundToZeroAreNotShownAsZero() {
+    // χ² = 1668.9 for 15 dof has an upper tail near 1e-345 (below the smallest double, so it rounds to 0)
+    assertEquals("< 1e-300", Output.p(0.0));
+    assertEquals("< 1e-300", Output.pEquals(0.0));
+    assertEquals("= 3.15e-93", Output.pEquals(3.15e-93));
+    assertEquals("0.0500", Output.p(0.05));
+  }
 }
