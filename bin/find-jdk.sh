@@ -38,7 +38,7 @@ triage_find_jdk() {
   cat >&2 <<'MSG'
 triage: no JDK 21 or newer found (looked at $JAVA_HOME, /usr/lib/jvm/*, /usr/java/*, /opt/java/*,
         ~/.sdkman and the javac on PATH).
-        Install one, for example on Debian or Ubuntu:   sudo apt-get install openjdk-21-jdk
+        Install one, for example on Debian and its derivatives:   sudo apt-get install openjdk-21-jdk
         (any vendor's JDK 21, 25 or newer works), or point JAVA_HOME at an installed one.
 MSG
   return 1

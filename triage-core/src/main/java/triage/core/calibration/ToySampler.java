@@ -9,10 +9,10 @@ import triage.core.stats.ProportionalDraw;
 /**
  * Draws one toy from a weighted reference sample: n ~ Poisson(N_exp) events, chosen without replacement so that
  * event i is in the toy with probability exactly π_i = n w_i / Σw, proportional to its weight (randomised
- * systematic sampling, {@link ProportionalDraw}; H. O. Hartley and J. N. K. Rao, Ann. Math. Statist. 33 (1962)
- * 350). The events not chosen form the toy's reference, each weighted w_i / (1 − π_i) (Horvitz–Thompson), so
- * that the toy's reference still describes the reference density without bias; the caller then renormalises it to
- * N_exp.
+ * systematic sampling, {@link ProportionalDraw}; "Sampling with unequal probabilities and without replacement",
+ * Ann. Math. Statist. 33 (1962) 350). The events not chosen form the toy's reference, each weighted
+ * w_i / (1 − π_i) (Horvitz–Thompson), so that the toy's reference still describes the reference density without
+ * bias; the caller then renormalises it to N_exp.
  *
  * <p>Why not simply draw events one after another with probability proportional to weight: such successive
  * sampling does not give inclusion probabilities proportional to weight (heavy events are under-drawn once the

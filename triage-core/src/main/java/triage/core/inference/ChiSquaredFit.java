@@ -29,11 +29,12 @@ import org.apache.commons.statistics.distribution.ChiSquaredDistribution;
  * </ul>
  *
  * <p>Algorithm: Newton iteration on {@code x = nu/2} for {@code psi(x) = c} from the starting point
- * {@code x0 = exp(c) + 1/2} ({@code c >= -2.22}) or {@code x0 = -1/(c - psi(1))} of T.P. Minka, "Estimating a
- * Dirichlet distribution" (2000, Appendix C), which converges in a few steps; digamma and trigamma from
- * commons-numbers-gamma; the mean of logs with {@link NeumaierSum}. References: R.A. Fisher (1922) for maximum
- * likelihood; the gamma-shape score equation with known scale, e.g. N.L. Johnson, S. Kotz, N. Balakrishnan,
- * Continuous Univariate Distributions vol. 1 (1994), ch. 17.
+ * {@code x0 = exp(c) + 1/2} ({@code c >= -2.22}) or {@code x0 = -1/(c - psi(1))} of "Estimating a Dirichlet
+ * distribution" (technical note, 2000, Appendix C), which converges in a few steps; digamma and trigamma from
+ * commons-numbers-gamma; the mean of logs with {@link NeumaierSum}. References: "On the mathematical foundations
+ * of theoretical statistics", Phil. Trans. R. Soc. Lond. A 222 (1922) 309, doi:10.1098/rsta.1922.0009, for
+ * maximum likelihood; the gamma-shape score equation with known scale, e.g. Continuous Univariate
+ * Distributions, vol. 1, 2nd ed. (1994), ch. 17.
  *
  * <p>Accuracy: Newton is iterated to a relative change below 1e-14 of {@code x}; the fitted nu is accurate to
  * about 1e-13 relative given the data.

@@ -17,9 +17,9 @@ import org.apache.commons.statistics.distribution.ChiSquaredDistribution;
  * </ul>
  *
  * <p>Algorithm: the survival function of {@link ChiSquaredDistribution} (commons-statistics-distribution), which
- * evaluates the upper incomplete gamma directly (no {@code 1 - P}); reference: S.S. Wilks, Ann. Math. Stat. 9
- * (1938) 60, doi:10.1214/aoms/1177732360; M. Abramowitz, I.A. Stegun, Handbook of Mathematical Functions,
- * §26.4.
+ * evaluates the upper incomplete gamma directly (no {@code 1 - P}); reference: "The large-sample distribution of
+ * the likelihood ratio for testing composite hypotheses", Ann. Math. Stat. 9 (1938) 60,
+ * doi:10.1214/aoms/1177732360; Handbook of Mathematical Functions, §26.4.
  *
  * <p>Accuracy: about 1e-14 relative in p, including the far tail (tested to {@code p ~ 1e-219}); p underflows to
  * 0 only below the smallest double. Where p is below 1e-290, Z comes from ln p ({@link LogTail}), so it stays

@@ -30,9 +30,9 @@ import org.apache.commons.statistics.distribution.NormalDistribution;
  * {@code [max(0, b - 8 sigma_b), b + 8 sigma_b]} with 2048 intervals, split at {@code n + 20 + 10 √(n+1)} into two
  * panels of 2048 intervals each when the range extends past it (σ_b large against n). The root is found with the Brent solver of
  * commons-numbers-rootfinder, bracketed by [0, classical upper limit], since the CLs limit never exceeds it.
- * Reference: A.L. Read, "Presentation of search results: the CLs technique", J. Phys. G 28 (2002) 2693,
- * doi:10.1088/0954-3899/28/10/313; the marginalisation follows R.D. Cousins, V.L. Highland, Nucl. Instrum. Meth.
- * A 320 (1992) 331, doi:10.1016/0168-9002(92)90794-5.
+ * Reference: "Presentation of search results: the CLs technique", J. Phys. G 28 (2002) 2693,
+ * doi:10.1088/0954-3899/28/10/313; the marginalisation follows "Incorporating systematic uncertainties into an
+ * upper limit", Nucl. Instrum. Meth. A 320 (1992) 331, doi:10.1016/0168-9002(92)90794-5.
  *
  * <p>Accuracy: the root is solved to an absolute tolerance of 1e-10 in s. The limits agree with adaptive
  * quadrature (SciPy) to 1e-7 relative, tested for σ_b from 0.3 to 200 (with a single panel, before the split, σ_b

@@ -17,7 +17,7 @@ import org.apache.commons.numbers.gamma.RegularizedGamma;
  *   <li>Z_Bi for the on/off problem {@code n_on ~ Pois(s + b)}, {@code n_off ~ Pois(tau b)}:
  *       {@code p_Bi = I_{1/(1+tau)}(n_on, n_off + 1)}, {@code Z_Bi = Phi^-1(1 - p_Bi)}; for {@code b +- sigma_b}
  *       one sets {@code tau = b / sigma_b^2}, {@code n_off = tau b} (non-integer arguments are allowed);</li>
- *   <li>Li and Ma eq. (17) profile-likelihood significance of an on/off measurement with
+ *   <li>the Li–Ma profile-likelihood significance of an on/off measurement (eq. (17) of the on/off paper below) with
  *       {@code alpha = 1/tau}:
  *       {@code S = sign(N_on - alpha N_off) sqrt(2) {N_on ln[(1+alpha)/alpha N_on/(N_on+N_off)]
  *       + N_off ln[(1+alpha) N_off/(N_on+N_off)]}^(1/2)}.</li>
@@ -36,12 +36,14 @@ import org.apache.commons.numbers.gamma.RegularizedGamma;
  *       {@link InferenceArgumentException}.</li>
  * </ul>
  *
- * <p>References: G. Cowan, K. Cranmer, E. Gross, O. Vitells (CCGV), Eur. Phys. J. C 71 (2011) 1554,
+ * <p>References: "Asymptotic formulae for likelihood-based tests of new physics", Eur. Phys. J. C 71 (2011) 1554,
  * doi:10.1140/epjc/s10052-011-1554-0, Sec. 5 (known-b Asimov formula; eq. (97), number from memory); the
- * sigma_b formula was derived by G. Cowan as a corollary of CCGV (2012 note "Discovery sensitivity for a counting
- * experiment with background uncertainty"); R.D. Cousins, J.T. Linnemann, J. Tucker, Nucl. Instrum. Meth. A 595
- * (2008) 480, doi:10.1016/j.nima.2008.07.086, arXiv:physics/0702156 (Z_Bi); T.-P. Li, Y.-Q. Ma, Astrophys. J.
- * 272 (1983) 317, doi:10.1086/161295, eq. (17).
+ * sigma_b formula is a corollary of the asymptotic-formulae paper (2012 note "Discovery sensitivity for a counting
+ * experiment with background uncertainty"); "Evaluation of three methods for calculating statistical significance
+ * when incorporating a systematic uncertainty into a test of the background-only hypothesis for a Poisson
+ * process", Nucl. Instrum. Meth. A 595 (2008) 480, doi:10.1016/j.nima.2008.07.086, arXiv:physics/0702156 (Z_Bi);
+ * the on/off paper "Analysis methods for results in gamma-ray astronomy", Astrophys. J. 272 (1983) 317,
+ * doi:10.1086/161295, eq. (17).
  *
  * <p>Far tail: where the p-value of Z_Bi (or of its Poisson limit) is below 1e-290, Z comes from ln p computed
  * in logarithms ({@link LogTail}), so strong excesses keep finite, ordered significances (tested to Z = 90 against
@@ -147,7 +149,8 @@ public final class CountingSignificance {
    * @param s expected signal ({@code >= 0})
    * @param b expected background ({@code > 0})
    * @param sigmaB absolute background uncertainty ({@code >= 0})
-   * @return the CCGV/Cowan median discovery significance (see class documentation)
+   * @return the median discovery significance of the sigma_b extension of the Asimov formula (see class
+   *     documentation)
    */
   public static double asimovZ(double s, double b, double sigmaB) {
     Arguments.nonNegative("signal s", s);
@@ -223,7 +226,7 @@ public final class CountingSignificance {
   }
 
   /**
-   * Li and Ma (1983) eq. (17) significance of an on/off measurement.
+   * Li–Ma significance of an on/off measurement (Astrophys. J. 272 (1983) 317, eq. (17)).
    *
    * @param nOn on-region count ({@code >= 0})
    * @param nOff off-region count ({@code >= 0})

@@ -23,8 +23,8 @@ import org.apache.commons.statistics.distribution.BetaDistribution;
  *   <li>no toys, a NaN toy or a NaN observation throws {@link InferenceArgumentException}.</li>
  * </ul>
  *
- * <p>Reference: C.J. Clopper, E.S. Pearson, "The use of confidence or fiducial limits illustrated in the case of
- * the binomial", Biometrika 26 (1934) 404, doi:10.1093/biomet/26.4.404; for the estimators see
+ * <p>Reference: "The use of confidence or fiducial limits illustrated in the case of the binomial",
+ * Biometrika 26 (1934) 404, doi:10.1093/biomet/26.4.404; for the estimators see
  * {@link PValueEstimator}.
  *
  * <p>Accuracy: counting is exact; the interval ends use the beta quantile of commons-statistics-distribution

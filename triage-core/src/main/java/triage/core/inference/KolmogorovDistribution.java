@@ -20,19 +20,19 @@ import org.apache.commons.numbers.gamma.LogGamma;
  *
  * <p>Algorithm: the first series for {@code lambda >= 1.18} and the second (theta-function) form below, each
  * summed until the next term is below 1e-17 relative. The exact distribution uses the matrix method of
- * G. Marsaglia, W.W. Tsang, J. Wang, "Evaluating Kolmogorov's distribution", J. Stat. Softw. 8(18) (2003),
+ * "Evaluating Kolmogorov's distribution", J. Stat. Softw. 8(18) (2003),
  * doi:10.18637/jss.v008.i18, with exponent bookkeeping in powers of two to avoid overflow. In the tail, where
  * that method's absolute error would swamp the probability ({@code n d^2 > 7.24}, or {@code n d^2 > 3.76} with
- * {@code n > 99}, the region of Marsaglia et al.'s own tail formula), it uses twice the exact one-sided
+ * {@code n > 99}, the region of the same paper's own tail formula), it uses twice the exact one-sided
  * probability {@code P(D+_n >= d) = d sum_{j=0}^{floor(n(1-d))} C(n,j) (1-d-j/n)^(n-j) (d+j/n)^(j-1)}
- * (Z. W. Birnbaum and F. H. Tingey, "One-sided confidence contours for probability distribution functions",
+ * ("One-sided confidence contours for probability distribution functions",
  * Ann. Math. Statist. 22 (1951) 592, doi:10.1214/aoms/1177729550), summed in logarithms. Both sides exceed d
  * together with a probability smaller by about {@code exp(-6 n d^2)}, below 1.6e-10 relative there.
  *
  * <p>Accuracy: the asymptotic series is accurate to a few ulp. The exact method computes
  * {@code P(D_n < d)} to about 13 digits, so {@code P(D_n >= d)} has an absolute error of about 1e-13; in the tail
  * the result is accurate to about 1e-10 relative (tested against SciPy). Cost {@code O((n d)^3 log n)}, and
- * {@code O(n)} in the tail. (Marsaglia et al.'s tail formula {@code 2 exp(-(2.000071 + 0.331/sqrt(n) + 1.409/n)
+ * {@code O(n)} in the tail. (That paper's tail formula {@code 2 exp(-(2.000071 + 0.331/sqrt(n) + 1.409/n)
  * n d^2)}, used before, is accurate to about 5 digits in the CDF only: 62% off at n = 50, p = 9e-10.)
  */
 public final class KolmogorovDistribution {
@@ -107,7 +107,7 @@ public final class KolmogorovDistribution {
   }
 
   /**
-   * The exact one-sided {@code P(D+_n >= d)} for {@code 0 < d <= 1} (Birnbaum and Tingey 1951), its terms summed
+   * The exact one-sided {@code P(D+_n >= d)} for {@code 0 < d <= 1} (the Birnbaum–Tingey formula), its terms summed
    * in logarithms relative to the largest.
    */
   static double oneSidedSurvival(double d, int n) {

@@ -7,7 +7,7 @@ import org.apache.commons.numbers.gamma.LogGamma;
  * Logarithms of tail probabilities that underflow a double (p below about 1e-308, Z beyond about 38), so that
  * significances stay finite and ordered where a scan compares many strong excesses.
  *
- * <p>Formulas (W. H. Press et al., <i>Numerical Recipes</i>, 3rd ed., §6.2 and §6.4, with the prefactors taken in
+ * <p>Formulas (<i>Numerical Recipes</i>, 3rd ed., §6.2 and §6.4, with the prefactors taken in
  * logarithms):
  * <ul>
  *   <li>{@code ln P(a, x)}, x &lt; a + 1: {@code -x + a ln x - ln Γ(a+1) + ln Σ_k x^k / ((a+1)…(a+k))};</li>
@@ -104,8 +104,8 @@ final class LogTail {
   /**
    * Z = Φ⁻¹(1 − p) from ln p. Above ln p = −700 it is {@link Significance#zFromP} of e^{ln p}; below, Newton's
    * method on {@code ln Φ̄(z) = ln p} with the asymptotic series
-   * {@code ln Φ̄(z) = -z²/2 - ln(z √(2π)) + ln(1 - 1/z² + 3/z⁴ - 15/z⁶ + 105/z⁸)} (Abramowitz and Stegun 26.2.12;
-   * its first omitted term, 945/z¹⁰, is below 1e-12 for z above 35).
+   * {@code ln Φ̄(z) = -z²/2 - ln(z √(2π)) + ln(1 - 1/z² + 3/z⁴ - 15/z⁶ + 105/z⁸)} (Handbook of Mathematical
+   * Functions, 26.2.12; its first omitted term, 945/z¹⁰, is below 1e-12 for z above 35).
    */
   static double zFromLogP(double logP) {
     if (logP > -700) {

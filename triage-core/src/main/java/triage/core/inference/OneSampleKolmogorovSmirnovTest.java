@@ -20,8 +20,10 @@ import java.util.function.DoubleUnaryOperator;
  * <p>Algorithm: sort a copy, one pass. P-value by {@link PValueMethod}: exact Marsaglia–Tsang–Wang
  * ({@link KolmogorovDistribution#oneSampleSurvival}); asymptotic {@code Q_KS(sqrt(n) D)}; or, for
  * {@link PValueMethod#AUTO}, exact for {@code n <= 1000} and otherwise the asymptotic form with the Stephens
- * correction {@code Q_KS((sqrt(n) + 0.12 + 0.11/sqrt(n)) D)} (M.A. Stephens, J. R. Stat. Soc. B 32 (1970) 115,
- * doi:10.1111/j.2517-6161.1970.tb00821.x). Reference: A.N. Kolmogorov, Giorn. Ist. Ital. Attuari 4 (1933) 83.
+ * correction {@code Q_KS((sqrt(n) + 0.12 + 0.11/sqrt(n)) D)} ("Use of the Kolmogorov–Smirnov, Cramér–von Mises
+ * and related statistics without extensive tables", J. R. Stat. Soc. B 32 (1970) 115,
+ * doi:10.1111/j.2517-6161.1970.tb00821.x). Reference: "Sulla determinazione empirica di una legge di
+ * distribuzione", Giorn. Ist. Ital. Attuari 4 (1933) 83.
  *
  * <p>Accuracy: D is exact up to the accuracy of F; for the p-value see {@link KolmogorovDistribution}. The
  * Stephens form is accurate to about 5e-3 relative for {@code n >= 1500} and p in [0.01, 0.9] (tested against

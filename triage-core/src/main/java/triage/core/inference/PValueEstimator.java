@@ -7,9 +7,9 @@ public enum PValueEstimator {
   /**
    * {@code (k + 1) / (N + 1)}: counts the observation as one of the replicas. It is a valid p-value
    * ({@code P(p <= alpha) <= alpha} under the null, with equality at the attainable levels for a continuous
-   * statistic) and never 0. Reference: B. Phipson, G.K. Smyth, "Permutation p-values should never be zero",
-   * Stat. Appl. Genet. Mol. Biol. 9 (2010) 39, doi:10.2202/1544-6115.1585; A.C. Davison, D.V. Hinkley,
-   * Bootstrap Methods and their Application (1997), eq. (4.11).
+   * statistic) and never 0. Reference: "Permutation p-values should never be zero",
+   * Stat. Appl. Genet. Mol. Biol. 9 (2010) 39, doi:10.2202/1544-6115.1585; Bootstrap Methods and their
+   * Application (1997), eq. (4.11).
    */
   PLUS_ONE,
   /**

@@ -15,8 +15,9 @@ import org.apache.commons.statistics.distribution.ChiSquaredDistribution;
  *   <li>{@code n < 0} or CL outside {@code (0, 1)} throws {@link InferenceArgumentException}.</li>
  * </ul>
  *
- * <p>Algorithm: the chi-squared/Poisson duality (Garwood 1936); reference: Particle Data Group, Review of Particle
- * Physics, "Statistics" review, Poisson-limit table (table number from memory); quantiles from
+ * <p>Algorithm: the chi-squared/Poisson duality ("Fiducial limits for the Poisson distribution", Biometrika 28
+ * (1936) 437); reference: Review of Particle Physics, "Statistics" review, Poisson-limit table (table number from
+ * memory); quantiles from
  * commons-statistics-distribution {@link ChiSquaredDistribution}.
  *
  * <p>Accuracy: that of the chi-squared quantile, about 1e-14 relative.

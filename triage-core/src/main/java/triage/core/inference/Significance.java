@@ -19,8 +19,8 @@ import org.apache.commons.statistics.distribution.NormalDistribution;
  *
  * <p>Algorithm: the tail functions of {@link NormalDistribution} (commons-statistics-distribution), which
  * evaluate {@code erfc} and its inverse directly in the tail instead of forming {@code 1 - p}. Reference for the
- * relation: G. Cowan, K. Cranmer, E. Gross, O. Vitells, "Asymptotic formulae for likelihood-based tests of new
- * physics", Eur. Phys. J. C 71 (2011) 1554, doi:10.1140/epjc/s10052-011-1554-0, Sec. 2.
+ * relation: "Asymptotic formulae for likelihood-based tests of new physics", Eur. Phys. J. C 71 (2011) 1554,
+ * doi:10.1140/epjc/s10052-011-1554-0, Sec. 2.
  *
  * <p>Accuracy: a few ulp relative in p for all Z up to about 38 (where p underflows to 0) and in Z for p down to
  * the smallest subnormal double; tested at {@code p = 1e-300}.

@@ -24,7 +24,7 @@ import triage.core.stats.NeumaierSum;
  * <p>Algorithm: binary search of each value in the edges, compensated bin sums, and the per-bin form
  * {@code (p+q)/4 g(d)}, {@code d = (p-q)/(p+q)}, {@code g(d) = (1+d) ln(1+d) + (1-d) ln(1-d)}, which is
  * non-negative term by term; g is summed as the series {@code sum_{k>=1} d^(2k)/(k(2k-1))} for {@code |d| < 0.1}.
- * Reference: J. Lin, "Divergence measures based on the Shannon entropy", IEEE Trans. Inf. Theory 37 (1991) 145,
+ * Reference: "Divergence measures based on the Shannon entropy", IEEE Trans. Inf. Theory 37 (1991) 145,
  * doi:10.1109/18.61115.
  *
  * <p>Accuracy: about 1e-15 relative, including nearly identical histograms (no cancellation).

@@ -31,8 +31,8 @@ import org.apache.commons.rng.simple.RandomSource;
  *
  * <p>Algorithm: B Fisher–Yates shuffles (commons-rng {@link PermutationSampler#shuffle}) of the pooled index
  * array from a seeded XO_RO_SHI_RO_128_PP generator; the first {@code n_obs} shuffled indices form the observed
- * group. Buffers are reused across permutations. Reference: P.H. Westfall, S.S. Young, Resampling-Based Multiple
- * Testing (Wiley, 1993), Algorithm 2.8 (single-step maxT); p-value convention of B. Phipson, G.K. Smyth, Stat.
+ * group. Buffers are reused across permutations. Reference: Resampling-Based Multiple Testing (1993),
+ * Algorithm 2.8 (single-step maxT); p-value convention of "Permutation p-values should never be zero", Stat.
  * Appl. Genet. Mol. Biol. 9 (2010) 39, doi:10.2202/1544-6115.1585.
  *
  * <p>Accuracy: Monte Carlo; the standard error of a p-value p is about {@code sqrt(p (1 - p) / B)}. Results are

@@ -29,10 +29,11 @@ import triage.core.stats.NeumaierSum;
  * with compensated cumulative sums, {@code O((n+m) log(n+m))}. Exact p: lattice-path recursion for the fraction
  * of paths from (0,0) to (n,m) that touch {@code |i m - j n| >= D n m},
  * {@code Q(i,j) = (i Q(i-1,j) + j Q(i,j-1)) / (i+j)}, which needs no binomial coefficients (no overflow), in
- * {@code O(n m)} time and {@code O(m)} memory (J.L. Hodges, Ark. Mat. 3 (1958) 469, doi:10.1007/BF02589501).
+ * {@code O(n m)} time and {@code O(m)} memory ("The significance probability of the Smirnov two-sample test",
+ * Ark. Mat. 3 (1958) 469, doi:10.1007/BF02589501).
  * {@link PValueMethod#AUTO} uses it when both samples have equal weights and {@code n m <= 10^6}.
- * Reference: N. Smirnov, Ann. Math. Stat. 19 (1948) 279, doi:10.1214/aoms/1177730256; effective sample size
- * L. Kish, Survey Sampling (1965).
+ * Reference: "Table for estimating the goodness of fit of empirical distributions", Ann. Math. Stat. 19 (1948)
+ * 279, doi:10.1214/aoms/1177730256; Kish effective sample size: Survey Sampling (1965).
  *
  * <p>Accuracy: D has the rounding of the cumulative weight sums, about 1e-16 relative. The exact p is accurate
  * to about 1e-14 relative (no cancellation: the touching fraction is accumulated directly). The asymptotic p is

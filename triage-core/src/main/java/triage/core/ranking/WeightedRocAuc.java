@@ -20,9 +20,11 @@ import triage.core.stats.NeumaierSum;
  * </ul>
  *
  * <p>Algorithm: sort both samples with their weights and sweep the distinct pooled values once, adding
- * {@code W_x(v) (W_y(< v) + W_y(v) / 2)} per value, {@code O((n+m) log(n+m))}. References: H.B. Mann,
- * D.R. Whitney, Ann. Math. Stat. 18 (1947) 50, doi:10.1214/aoms/1177730491; D. Bamber, J. Math. Psych. 12 (1975)
- * 387, doi:10.1016/0022-2496(75)90001-2 (AUC = U/(nm)).
+ * {@code W_x(v) (W_y(< v) + W_y(v) / 2)} per value, {@code O((n+m) log(n+m))}. References: "On a test of whether
+ * one of two random variables is stochastically larger than the other", Ann. Math. Stat. 18 (1947) 50,
+ * doi:10.1214/aoms/1177730491; "The area above the ordinal dominance graph and the area below the receiver
+ * operating characteristic graph", J. Math. Psych. 12 (1975) 387, doi:10.1016/0022-2496(75)90001-2
+ * (AUC = U/(nm)).
  *
  * <p>Accuracy: compensated sums throughout; relative error about 1e-15 for non-negative weights.
  */

@@ -23,7 +23,7 @@ import triage.core.stats.NeumaierSum;
  *
  * <p>Algorithm: sort both samples with their weights and sweep the distinct pooled values once, adding
  * {@code |F - G| (v_{k+1} - v_k)}, {@code O((n+m) log(n+m))}; two-pass weighted variance. Reference:
- * A. Ramdas, N. García Trillos, M. Cuturi, "On Wasserstein two-sample testing and related families of
+ * "On Wasserstein two-sample testing and related families of
  * nonparametric tests", Entropy 19 (2017) 47, arXiv:1509.02237 (the {@code int |F - G|} form in one dimension).
  *
  * <p>Accuracy: compensated sums; relative error about {@code 1e-15} times the ratio of the value range to W.

@@ -1,8 +1,8 @@
 package triage.core.ratio;
 
 /**
- * Plain full-batch Adam (Kingma &amp; Ba, "Adam: a method for stochastic optimization", ICLR
- * 2015, Algorithm 1) with weight clipping:
+ * Plain full-batch Adam ("Adam: a method for stochastic optimization", ICLR 2015, Algorithm 1)
+ * with weight clipping:
  * m ← β1 m + (1−β1) g, v ← β2 v + (1−β2) g², θ ← P(θ − α m̂ / (√v̂ + ε)) with
  * m̂ = m/(1−β1^t), v̂ = v/(1−β2^t), β1 = 0.9, β2 = 0.999, ε = 1e−8, P the projection onto
  * [−C, C]^P.

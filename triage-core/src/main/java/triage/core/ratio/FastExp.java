@@ -4,7 +4,7 @@ package triage.core.ratio;
  * Exponential by range reduction and a polynomial, written so that the vector kernel can repeat
  * exactly the same IEEE-754 operations lane by lane.
  *
- * <p>Algorithm (Cody–Waite style reduction, see J.-M. Muller, <i>Elementary Functions</i>,
+ * <p>Algorithm (Cody–Waite style reduction, see <i>Elementary Functions</i>,
  * ch. 11): clamp x to [−700, 700]; n = rint(x / ln 2) obtained with the shifter trick
  * t = fma(x, 1/ln2, 1.5·2^52), n = t − 1.5·2^52; r = x − n ln2 with ln 2 split into a high and a
  * low double and two fused multiply-adds, so |r| ≤ ln2/2 (+ a few ulp); p(r) = Σ_{k=0}^{13} r^k/k!

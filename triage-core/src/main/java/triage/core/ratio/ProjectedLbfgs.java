@@ -3,8 +3,9 @@ package triage.core.ratio;
 /**
  * Projected limited-memory BFGS for min L(θ) subject to −C ≤ θ_i ≤ C.
  *
- * <p>Iteration (Nocedal &amp; Wright, <i>Numerical Optimization</i>, 2nd ed., §7.2 and §16.7;
- * two-metric projection of Gafni &amp; Bertsekas, <i>SIAM J. Control Optim.</i> 22 (1984) 936):
+ * <p>Iteration (<i>Numerical Optimization</i>, 2nd ed., §7.2 and §16.7; two-metric projection as
+ * in "Two-metric projection methods for constrained optimization", <i>SIAM J. Control Optim.</i>
+ * 22 (1984) 936):
  * <ol>
  *   <li>ε-active set A = {i : θ_i ≤ −C + ε and g_i &gt; 0, or θ_i ≥ C − ε and g_i &lt; 0} with
  *       ε = min(10^{−3} C, ‖P(θ − g) − θ‖_∞), so variables close to a bound and pushed against it

@@ -1,7 +1,7 @@
 package triage.core.ratio;
 
 /**
- * SplitMix64 generator (G. Steele, D. Lea, C. Flood, "Fast splittable pseudorandom number
+ * SplitMix64 generator ("Fast splittable pseudorandom number
  * generators", OOPSLA 2014; finaliser constants from the published algorithm). Implemented here
  * so that a seed reproduces the same initial parameters on every JDK.
  *

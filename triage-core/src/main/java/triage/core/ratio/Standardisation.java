@@ -7,7 +7,7 @@ import java.util.Arrays;
  * the network.
  *
  * <p>{@link #weighted} computes the reference sample's weighted moments with the corrected
- * two-pass algorithm (Chan, Golub &amp; LeVeque, "Algorithms for computing the sample variance",
+ * two-pass algorithm ("Algorithms for computing the sample variance: analysis and recommendations",
  * <i>Am. Stat.</i> 37 (1983) 242) and Neumaier-compensated sums:
  * mean = Σ w x / Σ w; var = [Σ w (x − mean)² − (Σ w (x − mean))² / Σ w] / Σ w (population form,
  * no Bessel correction). Edge cases: a feature whose variance is not positive (constant feature,

@@ -13,10 +13,11 @@ import triage.core.inference.Significance;
  * <ul>
  *   <li>σ_syst: per variation the larger of |b_up − b| and |b_down − b|, added in quadrature over variations;
  *   σ_b = √(σ_stat² + σ_syst²);</li>
- *   <li>Z_Bi and its one-sided p: Cousins, Linnemann and Tucker, NIM A 595 (2008) 480, with τ = b/σ_b²;</li>
- *   <li>Z_A: the profile-likelihood (Asimov) significance with σ_b of Cowan, Cranmer, Gross and Vitells,
- *   EPJ C 71 (2011) 1554, evaluated at s = n − b (when positive);</li>
- *   <li>the 95% CL upper limit on the signal count by CLs (Read, J. Phys. G 28 (2002) 2693), with the
+ *   <li>Z_Bi and its one-sided p: NIM A 595 (2008) 480 (see {@link CountingSignificance}), with τ = b/σ_b²;</li>
+ *   <li>Z_A: the profile-likelihood (Asimov) significance of "Asymptotic formulae for likelihood-based tests of
+ *   new physics", EPJ C 71 (2011) 1554, with σ_b, evaluated at s = n − b (when positive);</li>
+ *   <li>the 95% CL upper limit on the signal count by CLs ("Presentation of search results: the CLs technique",
+ *   J. Phys. G 28 (2002) 2693), with the
  *   background uncertainty averaged over a truncated Gaussian;</li>
  *   <li>compatibility with the discovery: the discovery excess scaled by the ratio of expected yields,
  *   s_pred = (n_d − b_d)·b/b_d, compared with n − b as z = (n − b − s_pred)/σ_z with, to first order in the

@@ -6,8 +6,8 @@ import java.util.List;
 import triage.core.inference.CountingSignificance;
 
 /**
- * A box region found by the Patient Rule Induction Method (J. H. Friedman and N. I. Fisher, "Bump hunting in
- * high-dimensional data", Statistics and Computing 9 (1999) 123–143), maximising the significance of the observed
+ * A box region found by the Patient Rule Induction Method ("Bump hunting in high-dimensional data",
+ * Statistics and Computing 9 (1999) 123–143), maximising the significance of the observed
  * events over the expected reference yield in the box, followed by pruning to a few readable cuts.
  *
  * <ul>
@@ -21,7 +21,7 @@ import triage.core.inference.CountingSignificance;
  *   <li>Pruning: the cut whose removal lowers Z least is dropped while the loss is below the tolerance, and
  *   always while there are more cuts than allowed.</li>
  * </ul>
- * Z is Z_Bi with the reference's MC error (Cousins, Linnemann and Tucker 2008). It is optimised on the data it is
+ * Z is Z_Bi with the reference's MC error (Nucl. Instrum. Meth. A 595 (2008) 480). It is optimised on the data it is
  * computed on, so it is biased upwards: a region found here must be frozen and checked on independent data.
  */
 public final class Prim {

@@ -737,8 +737,8 @@ public final class EventFileReader {
    * with no blanks: NaN when the text has another form (then the caller takes the full path), else the same double
    * as {@link Double#parseDouble}. Exact by Clinger's fast path: when the digits form an integer m ≤ 2^53 and the
    * decimal exponent e has |e| ≤ 22, both m and 10^|e| are doubles without rounding, so the one multiplication or
-   * division m·10^e, m/10^−e is correctly rounded, as {@code parseDouble} is (W. D. Clinger, How to read floating
-   * point numbers accurately, PLDI 1990). Other cases (more digits, larger exponents) return NaN.
+   * division m·10^e, m/10^−e is correctly rounded, as {@code parseDouble} is ("How to read floating point numbers
+   * accurately", PLDI 1990). Other cases (more digits, larger exponents) return NaN.
    */
   static double fastNumber(char[] a, int from, int to) {
     int i = from;

@@ -10,9 +10,9 @@ package triage.core.stats;
  *   <li>NaN or infinite terms make the sum NaN or infinite as in plain summation.</li>
  * </ul>
  *
- * <p>Algorithm: A. Neumaier, "Rundungsfehleranalyse einiger Verfahren zur Summation endlicher Summen",
+ * <p>Algorithm: "Rundungsfehleranalyse einiger Verfahren zur Summation endlicher Summen",
  * ZAMM 54 (1974) 39–51, doi:10.1002/zamm.19740540106. The error bound is 2u|s| + O(n u²) Σ|x_i|,
- * independent of n to first order (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., §4.3).
+ * independent of n to first order (Accuracy and Stability of Numerical Algorithms, 2nd ed., §4.3).
  *
  * <p>Sums merged with {@link #combine} equal the single-stream sum only to within that bound; a fixed merge order
  * makes results reproducible.

@@ -9,8 +9,8 @@ import org.apache.commons.rng.sampling.PermutationSampler;
  * size: the items in a fresh uniformly random order, their π laid end to end on [0, n), one uniform start u in
  * [0, 1), and every item whose stretch holds one of u, u + 1, …, u + n − 1 is drawn. Each draw has exactly n items
  * and every π_i holds exactly (up to the 2^−40 grid below); the random order makes every pair of items possible
- * together. Reference: H. O. Hartley and J. N. K. Rao, "Sampling with unequal probabilities and without
- * replacement", Ann. Math. Statist. 33 (1962) 350–374, doi:10.1214/aoms/1177704564.
+ * together. Reference: "Sampling with unequal probabilities and without replacement", Ann. Math. Statist. 33
+ * (1962) 350–374, doi:10.1214/aoms/1177704564.
  *
  * <p>Items whose share would give π ≥ 1 are drawn every time ("certain"), and the rest is planned again without
  * them (common practice, no source). Items of size zero are never drawn. The probabilities are held as integers in

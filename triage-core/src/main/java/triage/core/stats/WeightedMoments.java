@@ -15,11 +15,14 @@ import java.util.Locale;
  *   <li>Zero or negative weights are accepted as given; when V₁ ≤ 0 the mean and variances are NaN.</li>
  * </ul>
  *
- * <p>Algorithm: the weighted incremental update of D.H.D. West, "Updating mean and variance estimates: an improved
+ * <p>Algorithm: the weighted incremental update of "Updating mean and variance estimates: an improved
  * method", Comm. ACM 22 (1979) 532–535, doi:10.1145/359146.359153; weight sums are compensated
- * ({@link NeumaierSum}). Streams are merged with the pairwise update of Chan, Golub and LeVeque (1979).
+ * ({@link NeumaierSum}). Streams are merged with the pairwise update of "Updating formulae and a pairwise
+ * algorithm for computing sample variances" (technical report, 1979; COMPSTAT 1982, 30–41,
+ * doi:10.1007/978-3-642-51461-6_3).
  *
- * <p>Accuracy: on the NIST StRD univariate sets NumAcc1–4 the standard deviation is exact to about eight
+ * <p>Accuracy: on the Statistical Reference Datasets (StRD) univariate sets NumAcc1–4 the standard deviation is
+ * exact to about eight
  * significant digits or better, which is what the decimal inputs allow in double precision. A naive
  * Σx² − (Σx)²/n formula fails on NumAcc4.
  */

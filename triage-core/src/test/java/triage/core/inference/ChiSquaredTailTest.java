@@ -42,8 +42,8 @@ class ChiSquaredTailTest {
     assertRelative(p, ChiSquaredTail.pValue(q, nu), 2e-4, "chi2 tail");
   }
 
-  // CHECK-VALUES.md §7 upper-tail critical values [C] (3-decimal roundings equal the NIST e-Handbook table,
-  // §1.3.6.7.4): Q(x_alpha | nu) = alpha.
+  // CHECK-VALUES.md §7 upper-tail critical values [C] (3-decimal roundings equal the table of the e-Handbook of
+  // Statistical Methods, §1.3.6.7.4): Q(x_alpha | nu) = alpha.
   static Stream<Arguments> criticalValues() {
     return Stream.of(
       Arguments.of(1, 0.05, 3.8415), Arguments.of(1, 0.001, 10.8276), Arguments.of(2, 0.01, 9.2103),

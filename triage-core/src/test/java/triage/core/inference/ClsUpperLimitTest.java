@@ -17,7 +17,8 @@ import org.junit.jupiter.params.provider.MethodSource;
 
 class ClsUpperLimitTest {
 
-  // CHECK-VALUES.md §4 "95% CLs upper limits on s" table [C]; method A.L. Read, J. Phys. G 28 (2002) 2693.
+  // CHECK-VALUES.md §4 "95% CLs upper limits on s" table [C]; method "Presentation of search results: the CLs
+  // technique", J. Phys. G 28 (2002) 2693.
   private static final double[] TABLE_B = {0, 0.5, 1, 2, 3, 5};
   private static final double[][] TABLE_95 = {
     {2.9957, 4.7439, 6.2958, 7.7537, 9.1535},
@@ -109,7 +110,7 @@ class ClsUpperLimitTest {
   }
 
   // cls-gaussian-background.csv: [C] scipy.integrate.quad of the truncated-Gaussian-averaged CLs (hybrid,
-  // Cousins & Highland 1992), brentq (generate_fixtures.py).
+  // Cousins–Highland, Nucl. Instrum. Meth. A 320 (1992) 331), brentq (generate_fixtures.py).
   static Stream<Arguments> gaussianBackground() {
     return Fixtures.rows("cls-gaussian-background.csv").stream()
       .map(r -> Arguments.of((int) r[0], r[1], r[2], r[3], r[4]));
@@ -133,8 +134,9 @@ class ClsUpperLimitTest {
 
   @Test
   void coverageIsConservative() {
-    // Read (2002): CLs over-covers, P(s_true excluded | s_true) <= 1 - CL. Computed exactly by summing the
-    // Poisson probabilities of every n_obs whose limit is below s_true (no randomness). Bound: 0.05 + 1e-12.
+    // The CLs paper (J. Phys. G 28 (2002) 2693): CLs over-covers, P(s_true excluded | s_true) <= 1 - CL.
+    // Computed exactly by summing the Poisson probabilities of every n_obs whose limit is below s_true (no
+    // randomness). Bound: 0.05 + 1e-12.
     final ClsUpperLimit cls = ClsUpperLimit.withDefaults();
     for (final double b : new double[] {0.5, 3}) {
       final double[] limits = new double[80];

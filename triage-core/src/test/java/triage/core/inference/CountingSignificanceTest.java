@@ -14,7 +14,8 @@ import org.junit.jupiter.params.provider.MethodSource;
 
 class CountingSignificanceTest {
 
-  // CHECK-VALUES.md §2 known-background table, [C]; formula CCGV, EPJC 71 (2011) 1554, Sec. 5.
+  // CHECK-VALUES.md §2 known-background table, [C]; formula of the asymptotic-formulae paper, EPJC 71 (2011) 1554,
+  // Sec. 5.
   static Stream<Arguments> asimovKnownBackground() {
     return Stream.of(
       Arguments.of(1, 1, 0.878970262),
@@ -141,7 +142,7 @@ class CountingSignificanceTest {
     assertRelative(z, CountingSignificance.likelihoodRatioZ(n, b), 1e-12, "Z(" + n + "," + b + ")");
   }
 
-  // CHECK-VALUES.md §3 Z_Bi table; (150,100,1) [Q2] printed tutorial output credited to Linnemann and [C];
+  // CHECK-VALUES.md §3 Z_Bi table; (150,100,1) [Q2] printed tutorial output and [C];
   // the others [C]; (5,1,1) p = 7/64 exactly.
   static Stream<Arguments> zBi() {
     return Stream.of(
@@ -165,7 +166,8 @@ class CountingSignificanceTest {
 
   @Test
   void zBiExactBinomial() {
-    // p_Bi = P[Bin(n_on + n_off, 1/(1+tau)) >= n_on] (CLT 2008): (5, 1, 1) -> P[Bin(6, 1/2) >= 5] = 7/64 exactly;
+    // p_Bi = P[Bin(n_on + n_off, 1/(1+tau)) >= n_on] (Nucl. Instrum. Meth. A 595 (2008) 480):
+    // (5, 1, 1) -> P[Bin(6, 1/2) >= 5] = 7/64 exactly;
     // tolerance 4 ulp-ish: 1e-15 relative
     assertRelative(7.0 / 64, CountingSignificance.zBi(5, 1, 1).pValue(), 1e-15, "7/64");
     // CHECK-VALUES.md §3: Z(s=50, b=100, 10%) maps to n_on=150, tau=1, n_off=100: 3.1080439 [C]

@@ -43,7 +43,7 @@ class EmpiricalPValueTest {
     }
   }
 
-  // clopper-pearson.csv: [C] scipy.stats.beta.ppf/isf (generate_fixtures.py); Clopper & Pearson (1934).
+  // clopper-pearson.csv: [C] scipy.stats.beta.ppf/isf (generate_fixtures.py); Biometrika 26 (1934) 404.
   static Stream<Arguments> clopperPearson() {
     return Fixtures.rows("clopper-pearson.csv").stream()
       .map(r -> Arguments.of((int) r[0], (int) r[1], r[2], r[3], r[4]));

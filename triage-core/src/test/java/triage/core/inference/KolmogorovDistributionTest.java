@@ -67,7 +67,8 @@ class KolmogorovDistributionTest {
 
   // kolmogorov-one-sample.csv: [C] exact P(D_n >= d) from scipy's Durbin matrix routine
   // (scipy.stats._ksstats._kolmogn_DMTW, Marsaglia–Tsang–Wang) and the public scipy.stats.kstwo.sf, which for
-  // n > 140 switches to the Pelz–Good approximation (Simard & L'Ecuyer 2011), n = 1..1000.
+  // n > 140 switches to the Pelz–Good approximation ("Computing the two-sided Kolmogorov–Smirnov distribution",
+  // J. Stat. Softw. 39(11) (2011)), n = 1..1000.
   static Stream<Arguments> oneSampleExact() {
     return Fixtures.rows("kolmogorov-one-sample.csv").stream()
       .map(r -> Arguments.of((int) r[0], r[1], r[2], r[3]));

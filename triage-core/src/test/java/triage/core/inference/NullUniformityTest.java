@@ -122,7 +122,7 @@ class NullUniformityTest {
   @Test
   void zBiIsConservativeOnOff() {
     // on/off null: n_on ~ Pois(b), n_off ~ Pois(tau b). Conditioned on n_on + n_off the binomial test is
-    // exact-conservative (Cousins, Linnemann & Tucker 2008), so P(p_Bi <= alpha) <= alpha; computed by double
+    // exact-conservative (Nucl. Instrum. Meth. A 595 (2008) 480), so P(p_Bi <= alpha) <= alpha; computed by double
     // summation (truncation error < 1e-12); tolerance 1e-9.
     final double b = 4;
     final double tau = 2;

@@ -50,7 +50,8 @@ class OneSampleKolmogorovSmirnovTestTest {
   @ParameterizedTest
   @MethodSource
   void stephensLargeN(int n, double d, double sf) {
-    // Stephens (1970) approximation; tolerance 6e-3 relative for p in [0.01, 0.9] (observed 4.3e-3 at n=1500)
+    // Stephens correction (J. R. Stat. Soc. B 32 (1970) 115); tolerance 6e-3 relative for p in [0.01, 0.9]
+    // (observed 4.3e-3 at n=1500)
     final double sqrtN = Math.sqrt(n);
     assertRelative(sf, KolmogorovDistribution.survival((sqrtN + 0.12 + 0.11 / sqrtN) * d), 6e-3,
       "Stephens n=" + n);

@@ -12,7 +12,7 @@ import org.junit.jupiter.params.provider.MethodSource;
 
 class PoissonLimitsTest {
 
-  // CHECK-VALUES.md §4 classical limits (b = 0): PDG Poisson-limit table layout [M], values [C].
+  // CHECK-VALUES.md §4 classical limits (b = 0): Review of Particle Physics Poisson-limit table layout [M], values [C].
   // columns: n, UL 90%, UL 95%, UL 99%, LL 90%, LL 95%
   static Stream<Arguments> table() {
     return Stream.of(

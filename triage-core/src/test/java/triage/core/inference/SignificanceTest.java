@@ -33,7 +33,7 @@ class SignificanceTest {
     assertRelative(z, Significance.zFromP(p), 1e-14, "Z(p)");
   }
 
-  // CHECK-VALUES.md §1, p -> Z table, [C] to 10 decimals (p=0.05 also [Q] Bhattiprolu, Martin & Wells 2021, Sec. 1).
+  // CHECK-VALUES.md §1, p -> Z table, [C] to 10 decimals (p=0.05 also [Q] arXiv:2009.07249, Sec. 1).
   static Stream<Arguments> zFromP() {
     return Stream.of(
       Arguments.of(0.10, 1.2815515655),
@@ -53,12 +53,14 @@ class SignificanceTest {
 
   @Test
   void fiveSigmaQuoted() {
-    // [Q] Bhattiprolu, Martin & Wells, EPJC (2021), arXiv:2009.07249: "Z>5 (p<2.867×10⁻⁷)";
+    // [Q] "Criteria for projected discovery and exclusion sensitivities of counting experiments", EPJC (2021),
+    // doi:10.1140/epjc/s10052-020-08819-6, arXiv:2009.07249: "Z>5 (p<2.867×10⁻⁷)";
     // the rounded p does not give exactly 5: tolerance 1e-3 absolute in Z (CHECK-VALUES.md §1).
     assertAbsolute(5.0, Significance.zFromP(2.867e-7), 1e-3, "Z(2.867e-7)");
   }
 
-  // CHECK-VALUES.md §1 two-sided table (PDG "Statistics" review, Table 40.1 layout [M], numbers [C]).
+  // CHECK-VALUES.md §1 two-sided table (Review of Particle Physics, "Statistics" review, Table 40.1 layout [M],
+  // numbers [C]).
   static Stream<Arguments> twoSided() {
     return Stream.of(
       Arguments.of(1, 0.3173105),

@@ -35,9 +35,9 @@ class MaxTPermutationTestTest {
   @Test
   void familyWiseErrorAndRawUniformityUnderNull() {
     // Complete null: 5 independent N(0,1) features, 30 observed + 30 reference events, B = 99 permutations,
-    // 300 seeded data sets. Westfall & Young (1993): FWER of {p~ <= alpha} is <= alpha; with exchangeable
-    // continuous statistics P(p_raw <= j/(B+1)) = j/(B+1). Stated tolerances: FWER at alpha = 0.1 and 0.2 below
-    // alpha + 3 binomial sd; raw fractions at 0.05, 0.1, 0.5 within 4 sd of 1500 feature tests.
+    // 300 seeded data sets. Resampling-Based Multiple Testing (1993): FWER of {p~ <= alpha} is <= alpha; with
+    // exchangeable continuous statistics P(p_raw <= j/(B+1)) = j/(B+1). Stated tolerances: FWER at alpha = 0.1
+    // and 0.2 below alpha + 3 binomial sd; raw fractions at 0.05, 0.1, 0.5 within 4 sd of 1500 feature tests.
     // KS D on 30 vs 30 has ties between permutations (discrete values), which only makes p conservative.
     final UniformRandomProvider rng = RandomSource.XO_RO_SHI_RO_128_PP.create(123L);
     final ContinuousDistribution.Sampler s = NormalDistribution.of(0, 1).createSampler(rng);

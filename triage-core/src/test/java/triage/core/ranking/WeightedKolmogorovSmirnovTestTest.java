@@ -20,7 +20,7 @@ class WeightedKolmogorovSmirnovTestTest {
 
   @Test
   void tenVersusTen() {
-    // CHECK-VALUES.md §6 [Q2] docs of Rust crate rv misc::ks_two_sample (exact method after Hodges 1958) and
+    // CHECK-VALUES.md §6 [Q2] docs of Rust crate rv misc::ks_two_sample (exact method after Ark. Mat. 3 (1958) 469) and
     // [C] scipy ks_2samp: D = 0.3, exact two-sided p = 0.7869297884777761. Tolerance 1e-12 relative.
     final double[] xs = {0.95692026, 1.1348812, -0.76579239, -0.58065653, -0.05122393, 0.71598754, 1.39873528,
       0.42790527, 1.84580764, 0.64228521};

@@ -18,7 +18,8 @@ class WeightedRocAucTest {
     return Stream.of(
       // [Q] scikit-learn 0.13 auc_score docstring: positives {0.35, 0.8} vs negatives {0.1, 0.4} -> 0.75
       Arguments.of(new double[] {0.35, 0.8}, new double[] {0.1, 0.4}, 0.75),
-      // [Q] scipy mannwhitneyu docstring (R. Shier 2004 example): U1 = 17 of 5 x 4 -> 0.85
+      // [Q] scipy mannwhitneyu docstring (its example from the 2004 handout "Statistics: 2.3 The Mann-Whitney U
+      // Test"): U1 = 17 of 5 x 4 -> 0.85
       Arguments.of(new double[] {19, 22, 16, 29, 24}, new double[] {20, 11, 17, 12}, 0.85),
       // [C] one tie: U = 3.5 -> 0.875
       Arguments.of(new double[] {0.5, 0.8}, new double[] {0.5, 0.2}, 0.875),

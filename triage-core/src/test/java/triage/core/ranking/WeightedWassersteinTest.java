@@ -57,7 +57,7 @@ class WeightedWassersteinTest {
 
   @Test
   void nistStandardDeviation() {
-    // NIST StRD NumAcc1 and NumAcc3 [Q] (CHECK-VALUES.md §5): certified s (denominator n-1) = 1 and 0.1; the
+    // StRD NumAcc1 and NumAcc3 [Q] (CHECK-VALUES.md §5): certified s (denominator n-1) = 1 and 0.1; the
     // population form used here is s sqrt((n-1)/n). Tolerances: 1e-14 relative for NumAcc1; 1e-7 relative for
     // NumAcc3 (decimal inputs not representable, CHECK-VALUES.md §5 suggestion).
     assertRelative(Math.sqrt(2.0 / 3), W.referenceStandardDeviation(

@@ -39,7 +39,8 @@ class FollowUpTest {
     // = 150 + 9 + 375 + 126.5625 = 660.5625 (by hand); z = (120 − 100 − 50)/√660.5625.
     assertEquals(50, f.predictedSignal(), 1e-12);
     assertEquals(-30 / Math.sqrt(660.5625), f.compatibilityZ(), 1e-12);
-    // Read (2002): with n = 0 the CLs limit is ln 20 = 2.9957 for any b (CHECK-VALUES §4); tiny σ_b here.
+    // CLs (J. Phys. G 28 (2002) 2693): with n = 0 the CLs limit is ln 20 = 2.9957 for any b (CHECK-VALUES §4);
+    // tiny σ_b here.
     assertEquals(Math.log(20), FollowUp.compute(0, 3, 1e-6, Map.of(), 1, 1, 0).clsUpperLimit95(), 1e-3);
   }
 

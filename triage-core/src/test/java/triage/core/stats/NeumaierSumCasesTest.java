@@ -23,7 +23,7 @@ class NeumaierSumCasesTest {
 
   @Test
   void nistNumAcc4Mean() {
-    // NIST StRD NumAcc4 [Q]: 10000000.2, then 500 x (10000000.1, 10000000.3); certified mean 10000000.2.
+    // StRD NumAcc4 [Q]: 10000000.2, then 500 x (10000000.1, 10000000.3); certified mean 10000000.2.
     // Tolerance: relative 1e-15 (the decimal inputs are not representable; CHECK-VALUES.md §5)
     final double[] y = new double[1001];
     y[0] = 10000000.2;

@@ -10,7 +10,8 @@ import org.junit.jupiter.api.Test;
 
 /**
  * Randomised systematic πps sampling: every draw has exactly n distinct items, and item i is drawn with the analytic
- * probability n s_i / Σ s (Hartley and Rao 1962, §2), checked by frequency over many seeded draws.
+ * probability n s_i / Σ s (Hartley–Rao, Ann. Math. Statist. 33 (1962) 350, §2), checked by frequency over many
+ * seeded draws.
  */
 class ProportionalDrawTest {
   @Test

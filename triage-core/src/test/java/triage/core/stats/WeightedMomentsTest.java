@@ -10,12 +10,13 @@ import org.junit.jupiter.params.provider.Arguments;
 import org.junit.jupiter.params.provider.MethodSource;
 import org.junit.jupiter.api.Test;
 
-/** Checks {@link WeightedMoments} against the NIST StRD univariate reference sets and analytic identities. */
+/** Checks {@link WeightedMoments} against the StRD univariate reference sets and analytic identities. */
 class WeightedMomentsTest {
 
   /**
-   * NIST/ITL Statistical Reference Datasets, "Univariate Summary Statistics", sets NumAcc1–NumAcc4
-   * (constructed data after Simon and Lesage, Comput. Stat. Data Anal. 8 (1989) 325–332): the data rule, the
+   * Statistical Reference Datasets (StRD), "Univariate Summary Statistics", sets NumAcc1–NumAcc4 (constructed
+   * data after "Assessing the accuracy of ANOVA calculations in statistical software", Comput. Stat. Data Anal. 8
+   * (1989) 325–332): the data rule, the
    * certified mean and the certified standard deviation (denominator n − 1), all exact. The tolerance is relative:
    * 1e-12 where the inputs are exactly representable or the set is easy, 1e-7 on NumAcc3 and NumAcc4, whose decimal
    * inputs are not representable in binary (about 8 digits is what double precision allows; see
@@ -90,7 +91,7 @@ class WeightedMomentsTest {
         1e-10 * repeated.populationVariance(), "seed 7");
   }
 
-  /** Merging two halves gives the single-stream result (Chan–Golub–LeVeque pairwise update). */
+  /** Merging two halves gives the single-stream result (the pairwise update cited in WeightedMoments). */
   @Test
   void combineEqualsOneStream() {
     SplittableRandom r = new SplittableRandom(11);

@@ -47,9 +47,10 @@ write("chi2-fit-expected.csv",
       "ks = stats.kstest(data, chi2(score_root_dof).cdf, method='exact') (Pelz-Good above n=140); "
       "ks_p_dmtw = 1 - scipy.stats._ksstats._kolmogn_DMTW(400, ks_d) (exact Durbin matrix)")
 
-# 2. exact one-sample Kolmogorov distribution. scipy.stats.kstwo switches (Simard & L'Ecuyer 2011) to the
-# Pelz-Good approximation or to 2*smirnov for n > 140, so the exact reference for every row is scipy's own
-# Durbin matrix routine (Marsaglia-Tsang-Wang 2003), the private scipy.stats._ksstats._kolmogn_DMTW;
+# 2. exact one-sample Kolmogorov distribution. scipy.stats.kstwo switches ("Computing the two-sided
+# Kolmogorov-Smirnov distribution", J. Stat. Softw. 39(11) (2011)) to the Pelz-Good approximation or to
+# 2*smirnov for n > 140, so the exact reference for every row is scipy's own Durbin matrix routine (the
+# Marsaglia-Tsang-Wang method, J. Stat. Softw. 8(18) (2003)), the private scipy.stats._ksstats._kolmogn_DMTW;
 # the public kstwo.sf is kept as a second column.
 from scipy.stats._ksstats import _kolmogn_DMTW
 rows = []
@@ -169,7 +170,8 @@ for s, b, sig in [(1e-3, 100, 0), (0.01, 1, 0), (1e-6, 1, 0), (0.5, 10, 0), (1e-
         v = sig ** 2
         q = (s + b) * mp.log((s + b) * (b + v) / (b ** 2 + (s + b) * v)) - b ** 2 / v * mp.log(1 + v * s / (b * (b + v)))
     rows.append([float(s), float(b), float(sig), float(mp.sqrt(2 * q))])
-write("asimov-z.csv", ["s", "b", "sigma_b", "z"], rows, "Asimov Z (CCGV known-b and Cowan sigma_b formulas) in mpmath, 50 digits")
+write("asimov-z.csv", ["s", "b", "sigma_b", "z"], rows,
+      "Asimov Z (known-b formula of the asymptotic-formulae paper and its sigma_b extension) in mpmath, 50 digits")
 
 # 8. significances whose p-value underflows a double (Z beyond about 38): ln p in mpmath (60 digits), then z solving
 # ln(erfc(z/sqrt2)/2) = ln p. kind zbi: n, b, sigma_b -> p = I_x(n, tau b + 1), x = 1/(1+tau), tau = b/sigma_b^2;
