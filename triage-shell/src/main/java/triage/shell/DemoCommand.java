@@ -241,12 +241,18 @@ public final class DemoCommand implements Callable<Integer> {
   private JsonNode run(String title, String... args) {
     say("      $ triage %s", String.join(" ", quoted(args)));
     Object[] last = new Object[1];
+    // A demo run from a script (triage run --json) collects the demo's own result through the same sink: keep it.
+    java.util.function.Consumer<Object> previous = Output.RESULTS.get();
     Output.RESULTS.set(v -> last[0] = v);
     int code;
     try {
       code = Main.run(args, human, err);
     } finally {
-      Output.RESULTS.remove();
+      if (previous == null) {
+        Output.RESULTS.remove();
+      } else {
+        Output.RESULTS.set(previous);
+      }
     }
     if (code != ExitCodes.OK || last[0] == null) {
       err.printf(Locale.ROOT, "triage: the demo stopped at '%s' (exit %d)%n", title, code);

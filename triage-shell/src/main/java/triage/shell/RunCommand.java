@@ -4,20 +4,25 @@ import java.io.IOException;
 import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
 import java.util.List;
+import java.util.Map;
 import java.util.concurrent.Callable;
 import org.jline.reader.impl.DefaultParser;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.Parameters;
+import triage.core.provenance.ToolVersion;
 import triage.core.sample.InputException;
 
 /** {@code triage run}: replays a console script. */
 @Command(name = "run", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
     description = {"Run a console script on an index: one console line per script line (blank lines and lines "
         + "starting with # are skipped), each echoed before it runs. Stops at the first failing line unless "
-        + "--keep-going."},
+        + "--keep-going. With --json every line's text goes to stderr and stdout carries one JSON object: each "
+        + "line with its exit code and its command's result object."},
     footer = ExitCodes.FOOTER)
 public final class RunCommand implements Callable<Integer> {
   /** Filled by picocli. */
@@ -31,6 +36,11 @@ public final class RunCommand implements Callable<Integer> {
   /** Keep going. */
   @Option(names = "--keep-going", description = "Run every line even after one fails (exit with the worst code).")
   boolean keepGoing;
+
+  /** JSON output. */
+  @Option(names = "--json", description = "Print exactly one JSON object on stdout: every line run, its exit code "
+      + "and its command's result (fields: docs/json.md).")
+  boolean json;
 
   /** Script. */
   @Parameters(index = "0", paramLabel = "SCRIPT", description = "The script file.")
@@ -51,8 +61,11 @@ public final class RunCommand implements Callable<Integer> {
     }
     Session session = new Session(index);
     DefaultParser parser = new DefaultParser();
-    var out = spec.commandLine().getOut();
     var err = spec.commandLine().getErr();
+    // With --json the lines' own text (echo, tables, a line's own --json object) goes to stderr, and stdout keeps
+    // the one object of this run.
+    var out = json ? err : spec.commandLine().getOut();
+    List<Map<String, Object>> steps = new ArrayList<>();
     int worst = 0;
     for (int i = 0; i < lines.size(); i++) {
       String line = lines.get(i).strip();
@@ -67,19 +80,45 @@ public final class RunCommand implements Callable<Integer> {
       } catch (org.jline.reader.EOFError e) {
         throw new InputException(script, i + 1, 0, "unbalanced quotes: " + e.getMessage(), null);
       }
-      int code = session.execute(line, words, out, err);
+      Object[] result = new Object[1];
+      java.util.function.Consumer<Object> previous = Output.RESULTS.get();
+      Output.RESULTS.set(v -> result[0] = v);
+      int code;
+      try {
+        code = session.execute(line, words, out, err);
+      } finally {
+        if (previous == null) {
+          Output.RESULTS.remove();
+        } else {
+          Output.RESULTS.set(previous);
+        }
+      }
       if (code < 0) {
         break;
       }
+      Map<String, Object> step = new LinkedHashMap<>();
+      step.put("line", i + 1);
+      step.put("text", line);
+      step.put("exitCode", code);
+      step.put("result", code == 0 ? result[0] : null);
+      steps.add(step);
       if (code != 0) {
         err.println("triage: " + script + ":" + (i + 1) + ": this line failed (exit code " + code + ")");
         err.flush();
         worst = worse(worst, code);
         if (!keepGoing) {
-          return code;
+          break;
         }
       }
     }
+    Map<String, Object> result = new LinkedHashMap<>();
+    result.put("command", "run");
+    result.put("tool", "triage " + ToolVersion.get());
+    result.put("index", index.toString());
+    result.put("script", script.toString());
+    result.put("exitCode", worst);
+    result.put("steps", steps);
+    new Output(spec, json).result(result);
     return worst;
   }
 

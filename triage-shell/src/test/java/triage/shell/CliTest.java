@@ -656,6 +656,44 @@ class CliTest {
     assertTrue(r.err().contains("NAME:UP_COLUMN:DOWN_COLUMN"), r.err());
   }
 
+  /**
+   * run --json keeps stdout to one object for the whole script, also when a line fails and when a line asks for
+   * its own --json (that object goes to stderr with the line's text); without --json the echo stays on stdout.
+   */
+  @Test
+  void runWithJsonPrintsOneObjectForTheWholeScript() throws IOException {
+    Path index = ingestSamples();
+    Path script = dir.resolve("s.triage");
+    Files.writeString(script, "# a comment\nname r5 = run = 5\nselect --where \"$r5\" --json\n"
+        + "select --where \"mass > 1\"\ninfo\n");
+    Run stop = run("run", "--index", index.toString(), "--json", script.toString());
+    assertEquals(ExitCodes.INPUT, stop.code(), stop.err());
+    JsonNode j = JSON.readTree(stop.out());
+    assertEquals("run", j.get("command").asText());
+    assertEquals(ExitCodes.INPUT, j.get("exitCode").asInt());
+    assertEquals(3, j.get("steps").size());
+    assertEquals(2, j.get("steps").get(0).get("line").asInt());
+    assertTrue(j.get("steps").get(0).get("result").isNull());
+    JsonNode select = j.get("steps").get(1);
+    assertEquals(0, select.get("exitCode").asInt());
+    assertEquals("select", select.get("result").get("command").asText());
+    assertEquals(2, select.get("result").get("samples").get(0).get("events").asLong());
+    assertEquals(4, j.get("steps").get(2).get("line").asInt());
+    assertEquals(ExitCodes.INPUT, j.get("steps").get(2).get("exitCode").asInt());
+    assertTrue(j.get("steps").get(2).get("result").isNull());
+    assertTrue(stop.err().contains("triage> select --where \"$r5\" --json"), stop.err());
+    assertTrue(stop.err().contains("\"command\" : \"select\""), stop.err());
+
+    Run all = run("run", "--index", index.toString(), "--json", "--keep-going", script.toString());
+    assertEquals(ExitCodes.INPUT, all.code(), all.err());
+    JsonNode k = JSON.readTree(all.out());
+    assertEquals(4, k.get("steps").size());
+    assertEquals("info", k.get("steps").get(3).get("result").get("command").asText());
+
+    Run human = run("run", "--index", index.toString(), script.toString());
+    assertTrue(human.out().startsWith("triage> name r5 = run = 5"), human.out());
+  }
+
   @Test
   void smallDemoRunsEndToEnd() throws IOException {
     Run r = run("demo", "--small", "--max-iterations", "200", "--toys", "0", "--permutations", "0", "--out",
