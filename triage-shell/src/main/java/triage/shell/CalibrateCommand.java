@@ -512,7 +512,7 @@ public final class CalibrateCommand implements Callable<Integer> {
     if (injectSample != null) {
       Manifest.Sample sample = c.manifest().sample(injectSample);
       if (sample == null) {
-        throw usage("--inject-sample: the index has no sample '" + injectSample + "'");
+        throw new InputException(index, "--inject-sample: the index has no sample '" + injectSample + "'");
       }
       if (sample.role() == Role.REFERENCE) {
         throw usage("--inject-sample: '" + injectSample + "' is the reference sample; inject another sample");
@@ -548,7 +548,8 @@ public final class CalibrateCommand implements Callable<Integer> {
       }
       int f = r.features().indexOf(eq[0].trim());
       if (f < 0) {
-        throw usage("--inject-bump: '" + eq[0].trim() + "' is not a feature of model " + c.mm().version()
+        throw new InputException(index, "--inject-bump: '" + eq[0].trim() + "' is not a feature of model "
+            + c.mm().version()
             + " (features: " + String.join(", ", r.features()) + ")");
       }
       try {

@@ -44,7 +44,7 @@ public final class DeriveCommand implements Callable<Integer> {
   Path index;
 
   /** Method. */
-  @Option(names = "--method", defaultValue = "box", paramLabel = "box|score",
+  @Option(names = "--method", defaultValue = "box", paramLabel = "box|score|window",
       description = "box (PRIM, default), score (threshold on a model's score) or window (sliding-window scan of "
           + "one feature).")
   String method;
@@ -124,7 +124,8 @@ public final class DeriveCommand implements Callable<Integer> {
       result.put("where", where);
       String condition;
       if (method.equals("score")) {
-        String column = model != null ? "score:" + model : EventsCommand.latestScore(m);
+        String column = model != null ? "score:" + model
+            : EventsCommand.latestScore(m, "fit a model first (triage fit)");
         double[] f = store.columns(observed, List.of(column))[0].clone();
         java.util.Arrays.sort(f);
         double bestZ = Double.NEGATIVE_INFINITY;

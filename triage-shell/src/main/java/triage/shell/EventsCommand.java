@@ -77,7 +77,7 @@ public final class EventsCommand implements Callable<Integer> {
         e.numbers().forEach((k, v) -> o.say("  %-20s %s", k, v));
         e.categories().forEach((k, v) -> o.say("  %-20s %s", k, v));
       } else {
-        String order = by != null ? by : latestScore(m);
+        String order = by != null ? by : latestScore(m, "give --by COLUMN, or fit a model first (triage fit)");
         Selection selection = where == null ? Selection.all() : store.where(where);
         BitSet mask = store.mask(selection, sample);
         String idColumn = m.spec().columns().id();
@@ -121,13 +121,14 @@ public final class EventsCommand implements Callable<Integer> {
     return ExitCodes.OK;
   }
 
-  static String latestScore(Manifest m) {
+  /** The latest model's score column; with no model, an input error that says what to do instead. */
+  static String latestScore(Manifest m, String otherwise) {
     String last = null;
     for (Manifest.Model mm : m.models()) {
       last = "score:" + mm.version();
     }
     if (last == null) {
-      throw new InputException(null, "no model scores yet: give --by COLUMN, or fit a model first");
+      throw new InputException(null, "no model scores yet: " + otherwise);
     }
     return last;
   }

@@ -8,7 +8,11 @@ public final class ExitCodes {
   /** An internal error (a bug): the message asks for a report. */
   public static final int INTERNAL = 1;
 
-  /** A usage error: unknown command or option, bad option value. */
+  /**
+   * A usage error, judged from the command line alone: unknown command or option, a missing option, a value of the
+   * wrong form or out of its range. (A name the index lacks, or a WHERE condition that does not parse, is
+   * {@link #INPUT}.)
+   */
   public static final int USAGE = 2;
 
   /** Invalid input: a file, spec or index that is missing, malformed or inconsistent. */

@@ -51,7 +51,8 @@ public final class ScanCommand implements Callable<Integer> {
     }
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
-      String column = model != null ? "score:" + model : EventsCommand.latestScore(m);
+      String column = model != null ? "score:" + model
+          : EventsCommand.latestScore(m, "fit a model first (triage fit)");
       String observed = m.samples().get(Roles.ordinal(m, Role.OBSERVED)).name();
       String reference = m.samples().get(Roles.ordinal(m, Role.REFERENCE)).name();
       double[] f = store.columns(observed, List.of(column))[0];

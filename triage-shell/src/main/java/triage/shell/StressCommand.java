@@ -208,8 +208,8 @@ public final class StressCommand implements Callable<Integer> {
       List<String> fs = List.of(text.substring(eq + 1, colon).split(","));
       for (String f : fs) {
         if (!features.contains(f)) {
-          throw new CommandLine.ParameterException(spec.commandLine(), "--scale '" + text + "': '" + f + "' is "
-              + "not a feature (features: " + String.join(", ", features) + ")");
+          throw new InputException(index, "--scale '" + text + "': '" + f + "' is not a feature of the index "
+              + "(features: " + String.join(", ", features) + ")");
         }
       }
       return new ScaleShift(text.substring(0, eq), fs, Double.parseDouble(text.substring(colon + 1)));

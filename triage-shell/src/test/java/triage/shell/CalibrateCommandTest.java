@@ -239,8 +239,13 @@ class CalibrateCommandTest {
 
     CliTest.Run badFeature = run("calibrate", "--index", a.toString(), "--toys", "5", "--inject-bump", "x=1,1",
         "--inject-yield", "4");
-    assertEquals(ExitCodes.USAGE, badFeature.code());
+    // a name the index lacks is invalid input (3), a malformed value a usage error (2): docs/json.md
+    assertEquals(ExitCodes.INPUT, badFeature.code());
     assertTrue(badFeature.err().contains("'x' is not a feature"), badFeature.err());
+    CliTest.Run badSample = run("calibrate", "--index", a.toString(), "--toys", "5", "--inject-sample", "nosuch",
+        "--inject-yield", "4");
+    assertEquals(ExitCodes.INPUT, badSample.code(), badSample.err());
+    assertTrue(badSample.err().contains("the index has no sample 'nosuch'"), badSample.err());
     CliTest.Run noYield = run("calibrate", "--index", a.toString(), "--toys", "5", "--inject-bump", "m=1,1");
     assertEquals(ExitCodes.USAGE, noYield.code());
   }

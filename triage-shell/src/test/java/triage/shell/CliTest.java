@@ -370,8 +370,8 @@ class CliTest {
     assertEquals(10.0 / 3, rows.get(1).get("pullToExplain").asDouble(), 1e-12);
     assertTrue(result.get("verdict").asText().contains("x_scale alone would explain"), r.out());
     Run bad = run("stress", "--index", index.toString(), "--where", "x > 50", "--scale", "oops=y:0.1");
-    assertEquals(2, bad.code());
-    assertTrue(bad.err().contains("'y' is not a feature (features: x)"), bad.err());
+    assertEquals(ExitCodes.INPUT, bad.code());
+    assertTrue(bad.err().contains("'y' is not a feature of the index (features: x)"), bad.err());
     Run reused = run("stress", "--index", index.toString(), "--where", "x > 50", "--scale", "x_scale=x:0.2");
     assertEquals(2, reused.code());
     assertTrue(reused.err().contains("already a systematic"), reused.err());
