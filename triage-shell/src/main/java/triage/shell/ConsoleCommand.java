@@ -40,23 +40,31 @@ public final class ConsoleCommand implements Callable<Integer> {
 
   @Override
   public Integer call() throws Exception {
+    // The index first: a missing or damaged one is reported before any terminal is set up (or warned about).
+    Manifest manifest = manifest(index);
     try (Terminal terminal = TerminalBuilder.builder().name("triage").system(true).build()) {
       if (terminal.getWidth() <= 0) {
         // A terminal that reports no size (some serial lines and wrappers): assume the classic one.
         terminal.setSize(new org.jline.terminal.Size(80, 24));
       }
-      return loop(terminal, index);
+      return loop(terminal, index, manifest);
+    }
+  }
+
+  private static Manifest manifest(Path index) {
+    try (EventStore store = EventStore.open(index)) {
+      return store.manifest();
+    } catch (java.io.IOException e) {
+      throw new java.io.UncheckedIOException(e);
     }
   }
 
   /** The read-run loop on a terminal (tests use a dumb terminal on streams). */
   static int loop(Terminal terminal, Path index) {
-    Manifest manifest;
-    try (EventStore store = EventStore.open(index)) {
-      manifest = store.manifest();
-    } catch (java.io.IOException e) {
-      throw new java.io.UncheckedIOException(e);
-    }
+    return loop(terminal, index, manifest(index));
+  }
+
+  private static int loop(Terminal terminal, Path index, Manifest manifest) {
     Session session = new Session(index);
     java.util.function.IntSupplier previousWidth = Output.terminalWidth;
     Output.terminalWidth = () -> terminal.getType().startsWith("dumb") ? 0 : terminal.getWidth();
