@@ -69,6 +69,8 @@ public final class EventsCommand implements Callable<Integer> {
         throw new InputException(index, "has no sample '" + sample + "'");
       }
       List<EventRecord> events = new ArrayList<>();
+      String order = null;
+      long selected = 1;
       if (id != null) {
         EventRecord e = store.event(sample, id).orElseThrow(() -> new InputException(index,
             "sample '" + sample + "' has no event with id " + id));
@@ -77,15 +79,14 @@ public final class EventsCommand implements Callable<Integer> {
         e.numbers().forEach((k, v) -> o.say("  %-20s %s", k, v));
         e.categories().forEach((k, v) -> o.say("  %-20s %s", k, v));
       } else {
-        String order = by != null ? by : latestScore(m, "give --by COLUMN, or fit a model first (triage fit)");
+        order = by != null ? by : latestScore(m, "give --by COLUMN, or fit a model first (triage fit)");
         Selection selection = where == null ? Selection.all() : store.where(where);
         BitSet mask = store.mask(selection, sample);
         String idColumn = m.spec().columns().id();
         double[][] cols = store.columns(sample, List.of(order, idColumn));
-        Integer[] picked = mask.stream().boxed().toArray(Integer[]::new);
-        java.util.Arrays.sort(picked, (a, b) -> Double.compare(cols[0][b], cols[0][a]));
-        o.say("%d events of %s in the selection; the top %d by %s:", picked.length, sample,
-            Math.min(top, picked.length), order);
+        int[] picked = topRows(mask, cols[0], top);
+        selected = mask.cardinality();
+        o.say("%d events of %s in the selection; the top %d by %s:", selected, sample, picked.length, order);
         List<String> features = m.spec().columns().features();
         StringBuilder header = new StringBuilder(String.format(java.util.Locale.ROOT, "  %12s %12s", idColumn,
             order));
@@ -96,7 +97,7 @@ public final class EventsCommand implements Callable<Integer> {
           header.append(' ').append(c);
         }
         o.say("%s", header);
-        for (int k = 0; k < Math.min(top, picked.length); k++) {
+        for (int k = 0; k < picked.length; k++) {
           EventRecord e = store.event(sample, (long) cols[1][picked[k]]).orElseThrow();
           events.add(e);
           StringBuilder line = new StringBuilder(String.format(java.util.Locale.ROOT, "  %12d %12.5g",
@@ -115,10 +116,75 @@ public final class EventsCommand implements Callable<Integer> {
       result.put("tool", "triage " + ToolVersion.get());
       result.put("index", index.toString());
       result.put("sample", sample);
+      result.put("where", id != null ? null : where);
+      result.put("orderBy", order);
+      result.put("selected", selected);
       result.put("events", events);
       o.result(result);
     }
     return ExitCodes.OK;
+  }
+
+  /**
+   * The rows of the {@code k} largest values among the set bits of {@code mask}, largest first; ties in row order
+   * (the order a stable sort gives). A bounded heap: O(n log k) time and O(k) memory, no boxing, whatever the
+   * selection's size.
+   */
+  static int[] topRows(BitSet mask, double[] values, int k) {
+    int n = Math.min(k, mask.cardinality());
+    int[] heap = new int[n]; // a min-heap of the kept rows under "ranks below"
+    int size = 0;
+    for (int row = mask.nextSetBit(0); row >= 0; row = mask.nextSetBit(row + 1)) {
+      if (size < n) {
+        heap[size] = row;
+        int c = size++;
+        while (c > 0 && below(values, heap[c], heap[(c - 1) / 2])) {
+          swap(heap, c, (c - 1) / 2);
+          c = (c - 1) / 2;
+        }
+      } else if (n > 0 && below(values, heap[0], row)) {
+        heap[0] = row;
+        int p = 0;
+        while (true) {
+          int l = 2 * p + 1;
+          int low = p;
+          if (l < size && below(values, heap[l], heap[low])) {
+            low = l;
+          }
+          if (l + 1 < size && below(values, heap[l + 1], heap[low])) {
+            low = l + 1;
+          }
+          if (low == p) {
+            break;
+          }
+          swap(heap, p, low);
+          p = low;
+        }
+      }
+    }
+    // Sort the kept rows, largest first (k is small).
+    Integer[] kept = new Integer[size];
+    for (int i = 0; i < size; i++) {
+      kept[i] = heap[i];
+    }
+    java.util.Arrays.sort(kept, (a, b) -> below(values, a, b) ? 1 : below(values, b, a) ? -1 : 0);
+    int[] out = new int[size];
+    for (int i = 0; i < size; i++) {
+      out[i] = kept[i];
+    }
+    return out;
+  }
+
+  /** Whether row a ranks below row b: a smaller value, or an equal one later in row order. */
+  private static boolean below(double[] values, int a, int b) {
+    int c = Double.compare(values[a], values[b]);
+    return c < 0 || (c == 0 && a > b);
+  }
+
+  private static void swap(int[] a, int i, int j) {
+    int t = a[i];
+    a[i] = a[j];
+    a[j] = t;
   }
 
   /** The latest model's score column; with no model, an input error that says what to do instead. */

@@ -520,6 +520,8 @@ class CliTest {
     // By hand: the largest m are 120.25 (event 2) and 100.5 (event 1).
     assertEquals(120.25, ev.get(0).get("numbers").get("m").asDouble(), 0);
     assertEquals(100.5, ev.get(1).get("numbers").get("m").asDouble(), 0);
+    assertEquals("m", JSON.readTree(top.out()).get("orderBy").asText());
+    assertEquals(3, JSON.readTree(top.out()).get("selected").asLong());
     Run one = run("events", "--index", index.toString(), "--sample", "observed", "--id", "11", "--json");
     assertEquals(0, one.code(), one.err());
     assertEquals(3, JSON.readTree(one.out()).get("events").get(0).get("line").asLong());
@@ -528,6 +530,32 @@ class CliTest {
     Run noModel = run("scan", "--index", index.toString());
     assertEquals(ExitCodes.INPUT, noModel.code());
     assertTrue(noModel.err().contains("no model scores yet"), noModel.err());
+  }
+
+  @Test
+  void topRowsEqualsAStableSortOfTheSelection() {
+    // Against a brute-force stable sort (largest first, ties in row order) of random values with many ties.
+    java.util.Random rng = new java.util.Random(5);
+    for (int trial = 0; trial < 200; trial++) {
+      int n = rng.nextInt(60);
+      double[] v = new double[n];
+      java.util.BitSet mask = new java.util.BitSet();
+      for (int i = 0; i < n; i++) {
+        v[i] = rng.nextInt(8) - 3;
+        if (rng.nextInt(3) > 0) {
+          mask.set(i);
+        }
+      }
+      int k = 1 + rng.nextInt(10);
+      Integer[] all = mask.stream().boxed().toArray(Integer[]::new);
+      java.util.Arrays.sort(all, (a, b) -> Double.compare(v[b], v[a]));
+      int[] expected = new int[Math.min(k, all.length)];
+      for (int i = 0; i < expected.length; i++) {
+        expected[i] = all[i];
+      }
+      org.junit.jupiter.api.Assertions.assertArrayEquals(expected, EventsCommand.topRows(mask, v, k),
+          "trial " + trial);
+    }
   }
 
   @Test
