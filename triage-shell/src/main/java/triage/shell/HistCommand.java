@@ -159,15 +159,18 @@ public final class HistCommand implements Callable<Integer> {
       }
       o.say("outside the range: observed %d below, %d above; expected %.4g below, %.4g above", ho.counts()[0],
           ho.counts()[bins + 1], hr.sumOfWeights()[0], hr.sumOfWeights()[bins + 1]);
+      List<String> plots = new ArrayList<>();
       if (png != null || svg != null) {
         var chart = HistogramChart.chart(column + (where == null ? "" : " for " + where), column, edges, n, b, pulls);
         if (png != null) {
           HistogramChart.png(chart, png, 900, 600);
           o.say("saved %s", png);
+          plots.add(png.toString());
         }
         if (svg != null) {
           HistogramChart.svg(chart, svg, 900, 600);
           o.say("saved %s", svg);
+          plots.add(svg.toString());
         }
       }
       Map<String, Object> result = new LinkedHashMap<>();
@@ -180,6 +183,7 @@ public final class HistCommand implements Callable<Integer> {
       result.put("bins", rows);
       result.put("underflow", Map.of("observed", ho.counts()[0], "expected", hr.sumOfWeights()[0]));
       result.put("overflow", Map.of("observed", ho.counts()[bins + 1], "expected", hr.sumOfWeights()[bins + 1]));
+      result.put("plots", plots);
       o.result(result);
     }
     return ExitCodes.OK;

@@ -189,15 +189,18 @@ public final class MapCommand implements Callable<Integer> {
         o.say("note: %d observed events lie in cells without reference events (no expectation: not scanned)",
             hot.observedWithoutReference());
       }
+      List<String> plots = new ArrayList<>();
       if (png != null || svg != null) {
         JFreeChart chart = chart(range, pull);
         if (png != null) {
           HistogramChart.png(chart, png, 800, 700);
           o.say("saved %s", png);
+          plots.add(png.toString());
         }
         if (svg != null) {
           HistogramChart.svg(chart, svg, 800, 700);
           o.say("saved %s", svg);
+          plots.add(svg.toString());
         }
       }
       Map<String, Object> result = new LinkedHashMap<>();
@@ -213,6 +216,7 @@ public final class MapCommand implements Callable<Integer> {
       result.put("hotSpotTrials", hot.trials());
       result.put("hotSpots", spots);
       result.put("observedWithoutReference", hot.observedWithoutReference());
+      result.put("plots", plots);
       o.result(result);
     }
     return ExitCodes.OK;

@@ -508,6 +508,9 @@ class CliTest {
     assertEquals((byte) 0x89, head[0]);
     assertEquals('P', head[1]);
     assertTrue(Files.readString(svg).contains("<svg"), "SVG written");
+    JsonNode plots = JSON.readTree(r.out()).get("plots");
+    assertEquals(png.toString(), plots.get(0).asText());
+    assertEquals(svg.toString(), plots.get(1).asText());
   }
 
   @Test
