@@ -7,6 +7,7 @@ import java.util.concurrent.Callable;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
+import triage.core.provenance.ToolVersion;
 import triage.core.sample.Variation;
 import triage.index.EventStore;
 import triage.index.Manifest;
@@ -75,6 +76,7 @@ public final class InfoCommand implements Callable<Integer> {
       }
       Map<String, Object> result = new LinkedHashMap<>();
       result.put("command", "info");
+      result.put("tool", "triage " + ToolVersion.get());
       result.put("index", index.toString());
       result.put("manifest", m);
       o.result(result);
