@@ -708,9 +708,20 @@ public final class EventFileReader {
       int nf = featureAt.length;
       double[] means = new double[nf];
       double[] sds = new double[nf];
+      if (!(Double.isFinite(sumW.value()) && Double.isFinite(sumW2.value()))) {
+        throw new InputException(file, "the weights are too large for their sum and sum of squares to stay within "
+            + "the range of doubles (weights up to about 1e154 can be squared): rescale the weight column");
+      }
       for (int k = 0; k < nf; k++) {
         means[k] = moments[k].mean();
         sds[k] = moments[k].populationStandardDeviation();
+        // The mean and spread are defined when the weights sum to more than zero; then only overflow makes them
+        // infinite or NaN.
+        if (moments[k].sumOfWeights() > 0 && !(Double.isFinite(means[k]) && Double.isFinite(sds[k]))) {
+          throw new InputException(file, "column '" + header.get(featureAt[k]) + "': its values are too large for "
+              + "their mean and standard deviation to stay within the range of doubles (about 1.8e308): rescale "
+              + "the column");
+        }
       }
       return new ReadResult(source.name(), file.toString(), sha256, compressed, delimiter, rowsRead, rowsAccepted,
           rowsRejected, rejectedByKind, negativeWeights, zeroWeights, sumW.value(), sumW2.value(), means, sds,

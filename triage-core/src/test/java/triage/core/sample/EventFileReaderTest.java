@@ -185,6 +185,17 @@ class EventFileReaderTest {
   }
 
   @Test
+  void sumsBeyondTheRangeOfDoublesAreRefusedNotNaN() throws IOException {
+    // (1e200)² = 1e400 overflows binary64 (largest finite about 1.8e308): analytic.
+    InputException w = fails(HEADER + "\n1,7,10.5,3,A,1e200,1,1\n", Role.REFERENCE);
+    assertTrue(w.getMessage().contains("rescale the weight column"), w.getMessage());
+    // 1.5e308 and -1.5e308: their difference overflows, so the spread cannot be formed: analytic.
+    InputException x = fails(HEADER + "\n1,7,1.5e308,3,A,1,1,1\n2,7,-1.5e308,3,A,1,1,1\n", Role.REFERENCE);
+    assertTrue(x.getMessage().contains("column 'm'") && x.getMessage().contains("rescale the column"),
+        x.getMessage());
+  }
+
+  @Test
   void numbersThatRoundToZeroAreRefusedNotAltered() throws IOException {
     // IEEE 754 binary64: the smallest subnormal is 2^-1074 ≈ 4.94e-324, and a decimal below half of it rounds to
     // 0 (analytic). Such a value is an out-of-range row, not a silent zero.
