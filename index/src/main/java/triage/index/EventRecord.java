@@ -1,5 +1,7 @@
 package triage.index;
 
+import java.util.Collections;
+import java.util.LinkedHashMap;
 import java.util.Map;
 
 /**
@@ -9,14 +11,15 @@ import java.util.Map;
  * @param row the index-wide row number
  * @param line the input line it was read from
  * @param weight the nominal weight
- * @param numbers numeric columns (features, id, run, block, external score, variation weights) by name
- * @param categories category columns by name
+ * @param numbers numeric columns (features, id, run, block, external score, variation weights, model scores) by
+ *     name, in the index's column order
+ * @param categories category columns by name, in the index's column order
  */
 public record EventRecord(String sample, long row, long line, double weight, Map<String, Double> numbers,
     Map<String, String> categories) {
-  /** Copies the maps. */
+  /** Copies the maps, keeping their order (so an event is shown and written column by column, every time). */
   public EventRecord {
-    numbers = Map.copyOf(numbers);
-    categories = Map.copyOf(categories);
+    numbers = Collections.unmodifiableMap(new LinkedHashMap<>(numbers));
+    categories = Collections.unmodifiableMap(new LinkedHashMap<>(categories));
   }
 }

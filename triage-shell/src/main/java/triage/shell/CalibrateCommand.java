@@ -61,7 +61,8 @@ public final class CalibrateCommand implements Callable<Integer> {
 
   /** Toys. */
   @Option(names = "--toys", paramLabel = "N",
-      description = "Total number of toys (all shards); with --tune-clip, toys per clip.")
+      description = "Total number of toys (all shards); with --tune-clip, toys per clip; with --inject-sample or "
+          + "--inject-bump, signal toys.")
   Integer toys;
 
   /** Model version. */

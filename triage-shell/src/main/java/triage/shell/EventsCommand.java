@@ -76,7 +76,7 @@ public final class EventsCommand implements Callable<Integer> {
             "sample '" + sample + "' has no event with id " + id));
         events.add(e);
         o.say("event %d of %s (row %d, input line %d), weight %s", id, sample, e.row(), e.line(), e.weight());
-        e.numbers().forEach((k, v) -> o.say("  %-20s %s", k, v));
+        e.numbers().forEach((k, v) -> o.say("  %-20s %s", k, plain(v)));
         e.categories().forEach((k, v) -> o.say("  %-20s %s", k, v));
       } else {
         order = by != null ? by : latestScore(m, "give --by COLUMN, or fit a model first (triage fit)");
@@ -185,6 +185,11 @@ public final class EventsCommand implements Callable<Integer> {
     int t = a[i];
     a[i] = a[j];
     a[j] = t;
+  }
+
+  /** A value as text: whole numbers (ids, runs, blocks, counts) without a trailing ".0", others as read back. */
+  static String plain(double v) {
+    return v == Math.rint(v) && Math.abs(v) <= 0x1p53 ? Long.toString((long) v) : Double.toString(v);
   }
 
   /** The latest model's score column; with no model, an input error that says what to do instead. */

@@ -8,6 +8,7 @@ import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 import triage.core.provenance.ToolVersion;
+import triage.core.sample.ScaleShift;
 import triage.core.sample.Variation;
 import triage.index.EventStore;
 import triage.index.Manifest;
@@ -61,6 +62,9 @@ public final class InfoCommand implements Callable<Integer> {
       o.say("bookkeeping %s", books);
       for (Variation v : m.spec().variations()) {
         o.say("variation  %s (up %s, down %s)", v.name(), v.up(), v.down());
+      }
+      for (ScaleShift sh : m.spec().scales()) {
+        o.say("scale      %s (%s scaled by 1 ± %s)", sh.name(), String.join(", ", sh.features()), sh.relative());
       }
       if (m.models().isEmpty()) {
         o.say("models     none yet (fit one with 'triage fit', or name a score column in the spec)");

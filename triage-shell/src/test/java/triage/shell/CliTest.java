@@ -536,6 +536,42 @@ class CliTest {
   }
 
   @Test
+  void oneEventInFullIsShownInColumnOrderWithWholeNumbersAsIntegers() throws IOException {
+    Path index = ingestSamples();
+    Run text = run("events", "--index", index.toString(), "--sample", "reference", "--id", "2");
+    assertEquals(0, text.code(), text.err());
+    // The index's column order (features m, pt; id event; run), the same on every run, and no "2.0" for an id.
+    java.util.List<String> names = text.out().lines().skip(1).map(l -> l.trim().split("\\s+")[0]).toList();
+    assertEquals(java.util.List.of("m", "pt", "event", "run"), names, text.out());
+    assertTrue(text.out().contains("event 2 of reference"), text.out());
+    assertTrue(text.out().lines().anyMatch(l -> l.trim().matches("event\\s+2")), text.out());
+    assertTrue(text.out().lines().anyMatch(l -> l.trim().matches("run\\s+5")), text.out());
+    assertTrue(text.out().lines().anyMatch(l -> l.trim().matches("m\\s+120\\.25")), text.out());
+    Run json = run("events", "--index", index.toString(), "--sample", "reference", "--id", "2", "--json");
+    assertEquals(0, json.code(), json.err());
+    java.util.List<String> fields = new java.util.ArrayList<>();
+    JSON.readTree(json.out()).get("events").get(0).get("numbers").fieldNames().forEachRemaining(fields::add);
+    assertEquals(java.util.List.of("m", "pt", "event", "run"), fields, json.out());
+  }
+
+  @Test
+  void infoListsTheScaleShiftsBesideTheWeightVariations() throws IOException {
+    writeSamples();
+    Files.writeString(dir.resolve("spec.json"), """
+        {"format": "triage-samples/1", "columns": {"features": ["m", "pt"], "id": "event", "run": "run"},
+         "scales": [{"name": "energy_scale", "features": ["m", "pt"], "relative": 0.015}],
+         "samples": [{"name": "reference", "role": "reference", "file": "ref.csv", "weight": "w"},
+                     {"name": "observed", "role": "observed", "file": "obs.csv"}]}
+        """);
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--spec", dir.resolve("spec.json").toString())
+        .code());
+    Run r = run("info", "--index", index.toString());
+    assertEquals(0, r.code(), r.err());
+    assertTrue(r.out().contains("scale      energy_scale (m, pt scaled by 1 ± 0.015)"), r.out());
+  }
+
+  @Test
   void topRowsEqualsAStableSortOfTheSelection() {
     // Against a brute-force stable sort (largest first, ties in row order) of random values with many ties.
     java.util.Random rng = new java.util.Random(5);
