@@ -332,27 +332,30 @@ public final class Calibration {
       }
     }
     double p;
+    double z;
     ZSource source;
     String statement;
     if (k > 0) {
       p = (k + 1.0) / (nulls.length + 1.0);
+      z = Significance.zFromP(p);
       source = ZSource.EMPIRICAL;
       statement = String.format(java.util.Locale.ROOT, "median expected Z = %.2f from the empirical null "
-          + "distribution (%d of %d null toys at or above the median signal t)", Significance.zFromP(p), k,
-          nulls.length);
+          + "distribution (%d of %d null toys at or above the median signal t)", z, k, nulls.length);
     } else if (positive >= 10 && positive == nulls.length) {
       ChiSquaredFit.Result fit = ChiSquaredFit.withDefaults().fit(nulls);
       p = fit.pValue(median);
+      // Z from ln p where p underflows, so a far extrapolation reads as a large finite Z, not infinity.
+      z = ChiSquaredTail.z(median, fit.dof());
       source = ZSource.FITTED_CHI2;
       statement = String.format(java.util.Locale.ROOT, "median expected Z = %.2f from the χ²(%.2f) fitted to the "
           + "null toys: no null toy reaches the median signal t, so this extrapolates (empirically only Z > %.2f)",
-          Significance.zFromP(p), fit.dof(), Significance.zFromP(1.0 / nulls.length));
+          z, fit.dof(), Significance.zFromP(1.0 / nulls.length));
     } else {
       p = ChiSquaredTail.pValue(median, parameters);
+      z = ChiSquaredTail.z(median, parameters);
       source = ZSource.PARAMETER_CHI2;
       statement = String.format(java.util.Locale.ROOT, "median expected Z = %.2f from χ²(%d parameters): too few "
-          + "null toys (%d) to fit a χ² to; run calibrate without injection first", Significance.zFromP(p),
-          parameters, nulls.length);
+          + "null toys (%d) to fit a χ² to; run calibrate without injection first", z, parameters, nulls.length);
     }
     double power = Double.NaN;
     if (nulls.length >= 19) {
@@ -370,7 +373,6 @@ public final class Calibration {
       }
       power = (double) detected / signal.length;
     }
-    return new Sensitivity(signal.length, median, lo, hi, nulls.length, p, Significance.zFromP(p), source, power,
-        statement);
+    return new Sensitivity(signal.length, median, lo, hi, nulls.length, p, z, source, power, statement);
   }
 }

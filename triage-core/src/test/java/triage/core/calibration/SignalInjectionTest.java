@@ -158,5 +158,12 @@ class SignalInjectionTest {
     assertEquals(Calibration.ZSource.PARAMETER_CHI2, w.source());
     assertEquals(ChiSquaredTail.pValue(50, 7), w.pMedian(), 0.0);
     assertTrue(Double.isNaN(w.power()));
+    // Far past every null toy p underflows to 0; Z still comes out finite, from ln p (ChiSquaredTail.z, checked
+    // against mpmath in ChiSquaredTailTest), and the statement never says "Infinity".
+    Calibration.Sensitivity far = Calibration.sensitivity(new double[] {5000}, new double[] {1, 2}, 7);
+    assertEquals(0.0, far.pMedian(), 0.0);
+    assertEquals(ChiSquaredTail.z(5000, 7), far.zMedian(), 0.0);
+    assertTrue(Double.isFinite(far.zMedian()) && far.zMedian() > 60, "Z = " + far.zMedian());
+    assertTrue(!far.statement().contains("Infinity"), far.statement());
   }
 }
