@@ -715,9 +715,9 @@ public final class EventFileReader {
       for (int k = 0; k < nf; k++) {
         means[k] = moments[k].mean();
         sds[k] = moments[k].populationStandardDeviation();
-        // The mean and spread are defined when the weights sum to more than zero; then only overflow makes them
-        // infinite or NaN.
-        if (moments[k].sumOfWeights() > 0 && !(Double.isFinite(means[k]) && Double.isFinite(sds[k]))) {
+        // Where the mean and spread are defined (the running weight sum is positive), only overflow makes them
+        // infinite or NaN; weights that cancel leave them undefined (NaN), which is not an overflow.
+        if (moments[k].defined() && !(Double.isFinite(means[k]) && Double.isFinite(sds[k]))) {
           throw new InputException(file, "column '" + header.get(featureAt[k]) + "': its values are too large for "
               + "their mean and standard deviation to stay within the range of doubles (about 1.8e308): rescale "
               + "the column");

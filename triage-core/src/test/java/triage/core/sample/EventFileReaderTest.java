@@ -287,6 +287,18 @@ class EventFileReaderTest {
   }
 
   @Test
+  void weightsThatNearlyCancelAreNotTakenForOverflow() throws IOException {
+    // Weights 1, 1e-17, -1 (allowed negative weights): Σw = 1e-17 exactly in the compensated sum (1 + 1e-17 - 1,
+    // by hand), while a plain running sum reads 0, so the weighted mean is undefined (NaN), as for weights summing
+    // to zero. Small values, nothing near the range of doubles: the file is read, not refused as overflowing.
+    Path f = write("cancel.csv", HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,11.5,4,A,1e-17,1,1\n3,7,12.5,5,A,-1,1,1\n");
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict().with(WeightPolicy.ANY_FINITE));
+    assertEquals(3, c.result.rowsAccepted());
+    assertEquals(1e-17, c.result.sumOfWeights());
+    assertEquals(List.of(10.5, 11.5, 12.5), c.m);
+  }
+
+  @Test
   void quotedFieldWithNewlineKeepsLineNumbers() throws IOException {
     InputException e = fails(HEADER + "\n1,7,10.5,3,\"A\nB\",1,1,1\n2,7,x,3,A,1,1,1\n", Role.REFERENCE);
     assertPlace(e, "bad.csv", 4, 3);
