@@ -719,8 +719,9 @@ public final class EventFileReader {
         // infinite or NaN; weights that cancel leave them undefined (NaN), which is not an overflow.
         if (moments[k].defined() && !(Double.isFinite(means[k]) && Double.isFinite(sds[k]))) {
           throw new InputException(file, "column '" + header.get(featureAt[k]) + "': its values are too large for "
-              + "their mean and standard deviation to stay within the range of doubles (about 1.8e308): rescale "
-              + "the column");
+              + "their differences from the mean and the weighted sum of squared deviations (from which the "
+              + "standard deviation is computed) to stay within the range of doubles (values of magnitude up to "
+              + "about 1e150 fit): rescale the column");
         }
       }
       return new ReadResult(source.name(), file.toString(), sha256, compressed, delimiter, rowsRead, rowsAccepted,

@@ -196,6 +196,22 @@ class EventFileReaderTest {
   }
 
   @Test
+  void aSpreadRefusedForItsSquaresSaysSoAndOneThatFitsIsRead() throws IOException {
+    // m = 1e150, 0, -1e150 (weights one): mean 0 and population sd 1e150·√(2/3) ≈ 8.2e149, by hand; the squares
+    // (about 1e300) fit in a double, so the file is read.
+    Path f = write("wide.csv", HEADER + "\n1,7,1e150,3,A,1,1,1\n2,7,0,3,A,1,1,1\n3,7,-1e150,3,A,1,1,1\n");
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict());
+    assertEquals(0.0, c.result.featureMeans()[0]);
+    assertEquals(1e150 * Math.sqrt(2.0 / 3), c.result.featureSds()[0], 1e-12 * 1e150);
+    // 1e160, 0, -1e160: the sd (8.2e159) is within the range of doubles, but the squares (1e320) are not, so the
+    // refusal must name the squares and the size that fits, not claim the mean or sd leave the range.
+    InputException e = fails(HEADER + "\n1,7,1e160,3,A,1,1,1\n2,7,0,3,A,1,1,1\n3,7,-1e160,3,A,1,1,1\n",
+        Role.REFERENCE);
+    assertTrue(e.getMessage().contains("column 'm'") && e.getMessage().contains("squared deviations")
+        && e.getMessage().contains("about 1e150"), e.getMessage());
+  }
+
+  @Test
   void numbersThatRoundToZeroAreRefusedNotAltered() throws IOException {
     // IEEE 754 binary64: the smallest subnormal is 2^-1074 ≈ 4.94e-324, and a decimal below half of it rounds to
     // 0 (analytic). Such a value is an out-of-range row, not a silent zero.
