@@ -336,6 +336,26 @@ class EventFileReaderTest {
   }
 
   @Test
+  void unterminatedQuoteIsPlacedWithLoneCarriageReturnLineEnds() throws IOException {
+    // Lone CR ends lines (as in the rest of the reader): the quote opens on line 3 (header, row, row), field 5.
+    InputException cr = fails(HEADER + "\r1,7,10.5,3,A,1,1,1\r2,7,10.5,3,\"A,1,1,1\r", Role.REFERENCE);
+    assertPlace(cr, "bad.csv", 3, 5);
+    // a lone CR inside an earlier quoted field is a line end for the line count too: the open quote is on line 4
+    InputException inner = fails(HEADER + "\n1,7,10.5,3,\"A\rB\",1,1,1\n2,7,10.5,3,\"A,1,1,1\n",
+        Role.REFERENCE);
+    assertPlace(inner, "bad.csv", 4, 5);
+  }
+
+  @Test
+  void unterminatedQuoteInTheHeaderIsPlaced() throws IOException {
+    // event,run,"m,... : the quote opens on line 1 in field 3 and is never closed
+    InputException e = fails(HEADER.replace("m,", "\"m,") + "\n1,7,10.5,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 1, 3);
+    assertTrue(e.getMessage().contains("not closed before the end of the file"), e.getMessage());
+    assertFalse(e.getMessage().contains("startline"), e.getMessage());
+  }
+
+  @Test
   void skipPolicyReconcilesAndReportsEveryRejectedRow() throws IOException {
     String text = HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,x,3,A,1,1,1\n3,7,1,3,A,1,1\n1,7,1,3,A,1,1,1\n"
         + "4,7,1,NaN,A,1,1,1\n\n5,7,1,2,B,1,1,1\n";
