@@ -620,7 +620,8 @@ public final class EventFileReader {
       }
       if (Double.isInfinite(v) && isDigitText(t)) {
         problem = new RowProblem(file, line, at + 1, header.get(at), text, Kind.OUT_OF_RANGE,
-            "a number of magnitude at most 1.8e308 (this one would round to infinity)");
+            "a number of magnitude at most 1.7976931348623157e308, the largest double (this one would round to "
+                + "infinity)");
         return 0;
       }
       if (t.isEmpty()) {

@@ -180,8 +180,17 @@ class EventFileReaderTest {
     assertTrue(e.getMessage().contains("expected a finite number"), e.getMessage());
     InputException overflow = fails(HEADER + "\n1,7,1e999,3,A,1,1,1\n", Role.REFERENCE);
     assertPlace(overflow, "bad.csv", 2, 3);
-    assertTrue(overflow.getMessage().contains("found '1e999', expected a number of magnitude at most 1.8e308"),
+    assertTrue(overflow.getMessage().contains("found '1e999', expected a number of magnitude at most "),
         overflow.getMessage());
+    // 1.8e308 exceeds the largest double, (2 − 2^-52)·2^1023 ≈ 1.7976931348623157e308 (analytic), so it is out of
+    // range; the bound the message states must then lie below it (and read as that largest double), not be 1.8e308.
+    InputException edge = fails(HEADER + "\n1,7,1.8e308,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(edge, "bad.csv", 2, 3);
+    java.util.regex.Matcher bound = java.util.regex.Pattern.compile("at most ([0-9.eE+]+)").matcher(edge.getMessage());
+    assertTrue(bound.find(), edge.getMessage());
+    assertTrue(new java.math.BigDecimal(bound.group(1)).compareTo(new java.math.BigDecimal("1.8e308")) < 0,
+        edge.getMessage());
+    assertEquals(Double.MAX_VALUE, Double.parseDouble(bound.group(1)), edge.getMessage());
   }
 
   @Test
