@@ -310,10 +310,16 @@ public final class EventFileReader {
       try (CSVParser parser = CSVParser.builder().setReader(reader).setFormat(format).get()) {
         Iterator<CSVRecord> it = parser.iterator();
         if (header) {
-          if (!it.hasNext()) {
-            throw new InputException(file, 1, 0, "no header line: expected the column names", null);
+          List<String> names;
+          try {
+            if (!it.hasNext()) {
+              throw new InputException(file, 1, 0, "no header line: expected the column names", null);
+            }
+            names = it.next().toList();
+          } catch (UncheckedIOException e) {
+            throw unclosedQuote(e, linesBefore + 1);
           }
-          readHeader(it.next().toList());
+          readHeader(names);
           startBatches();
         }
         long lineBefore = parser.getCurrentLineNumber();
@@ -325,16 +331,7 @@ public final class EventFileReader {
             }
             record = it.next();
           } catch (UncheckedIOException e) {
-            String why = rootMessage(e);
-            long at = linesBefore + lineBefore + 1;
-            // the parser's own wording counts lines from where it was started, not from the file's start
-            if (why != null && why.contains("EOF reached before encapsulated token finished")) {
-              long[] open = openQuote(file, delimiter, at);
-              throw new InputException(file, open[0], (int) open[1], "cannot parse the row: a quoted field that "
-                  + "starts here is not closed before the end of the file (expected a closing '\"'; a row cannot "
-                  + "be set aside when its end cannot be found)", e);
-            }
-            throw new InputException(file, at, 0, "cannot parse the row: " + why, e);
+            throw unclosedQuote(e, linesBefore + lineBefore + 1);
           }
           long line = linesBefore + lineBefore + 1;
           lineBefore = parser.getCurrentLineNumber();
@@ -346,6 +343,19 @@ public final class EventFileReader {
         throw new InputException(file, 0, 0, "cannot read: " + rootMessage(e), e);
       }
       flushBatch();
+    }
+
+    /** The error for a record starting on line {@code at} that the parser could not read. */
+    private InputException unclosedQuote(UncheckedIOException e, long at) {
+      String why = rootMessage(e);
+      // the parser's own wording counts lines from where it was started, not from the file's start
+      if (why != null && why.contains("EOF reached before encapsulated token finished")) {
+        long[] open = openQuote(file, delimiter, at);
+        return new InputException(file, open[0], (int) open[1], "cannot parse the row: a quoted field that "
+            + "starts here is not closed before the end of the file (expected a closing '\"'; a row cannot "
+            + "be set aside when its end cannot be found)", e);
+      }
+      return new InputException(file, at, 0, "cannot parse the row: " + why, e);
     }
 
     /**
@@ -363,7 +373,7 @@ public final class EventFileReader {
         Reader r = new BufferedReader(new InputStreamReader(in, StandardCharsets.UTF_8), 1 << 16);
         long current = 1;
         int c;
-        while (current < line && (c = r.read()) >= 0) {
+        while (current < line && (c = next(r)) >= 0) {
           if (c == '\n') {
             current++;
           }
@@ -373,7 +383,7 @@ public final class EventFileReader {
         int openField = 0;
         boolean fieldStart = true;
         boolean quoted = false;
-        while ((c = r.read()) >= 0) {
+        while ((c = next(r)) >= 0) {
           if (quoted) {
             if (c == '"') {
               r.mark(1);
@@ -407,6 +417,19 @@ public final class EventFileReader {
       } catch (IOException e) {
         return new long[] {line, 0};
       }
+    }
+
+    /** The next character, with a line end ({@code \n}, {@code \r\n} or a lone {@code \r}) read as one {@code \n}. */
+    private static int next(Reader r) throws IOException {
+      int c = r.read();
+      if (c == '\r') {
+        r.mark(1);
+        if (r.read() != '\n') {
+          r.reset();
+        }
+        return '\n';
+      }
+      return c;
     }
 
     private static String rootMessage(Throwable e) {
@@ -597,7 +620,8 @@ public final class EventFileReader {
       }
       if (Double.isInfinite(v) && isDigitText(t)) {
         problem = new RowProblem(file, line, at + 1, header.get(at), text, Kind.OUT_OF_RANGE,
-            "a number of magnitude at most 1.8e308 (this one would round to infinity)");
+            "a number of magnitude at most 1.7976931348623157e308, the largest double (this one would round to "
+                + "infinity)");
         return 0;
       }
       if (t.isEmpty()) {
@@ -715,12 +739,13 @@ public final class EventFileReader {
       for (int k = 0; k < nf; k++) {
         means[k] = moments[k].mean();
         sds[k] = moments[k].populationStandardDeviation();
-        // The mean and spread are defined when the weights sum to more than zero; then only overflow makes them
-        // infinite or NaN.
-        if (moments[k].sumOfWeights() > 0 && !(Double.isFinite(means[k]) && Double.isFinite(sds[k]))) {
+        // Where the mean and spread are defined (the running weight sum is positive), only overflow makes them
+        // infinite or NaN; weights that cancel leave them undefined (NaN), which is not an overflow.
+        if (moments[k].defined() && !(Double.isFinite(means[k]) && Double.isFinite(sds[k]))) {
           throw new InputException(file, "column '" + header.get(featureAt[k]) + "': its values are too large for "
-              + "their mean and standard deviation to stay within the range of doubles (about 1.8e308): rescale "
-              + "the column");
+              + "their differences from the mean and the weighted sum of squared deviations (from which the "
+              + "standard deviation is computed) to stay within the range of doubles (values of magnitude up to "
+              + "about 1e150 fit): rescale the column");
         }
       }
       return new ReadResult(source.name(), file.toString(), sha256, compressed, delimiter, rowsRead, rowsAccepted,

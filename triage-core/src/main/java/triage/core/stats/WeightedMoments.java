@@ -116,6 +116,15 @@ public final class WeightedMoments {
     return sumW2.value();
   }
 
+  /**
+   * Whether the mean and variances are defined: a value was seen and the running Σ w the update uses is positive
+   * (the test {@link #mean()} makes). With weights that nearly cancel this can be false while the compensated
+   * {@link #sumOfWeights()} is a little above zero.
+   */
+  public boolean defined() {
+    return count > 0 && runningW > 0;
+  }
+
   /** The weighted mean, or NaN when empty or Σ w ≤ 0. */
   public double mean() {
     return count == 0 || !(runningW > 0) ? Double.NaN : mean;

@@ -180,8 +180,17 @@ class EventFileReaderTest {
     assertTrue(e.getMessage().contains("expected a finite number"), e.getMessage());
     InputException overflow = fails(HEADER + "\n1,7,1e999,3,A,1,1,1\n", Role.REFERENCE);
     assertPlace(overflow, "bad.csv", 2, 3);
-    assertTrue(overflow.getMessage().contains("found '1e999', expected a number of magnitude at most 1.8e308"),
+    assertTrue(overflow.getMessage().contains("found '1e999', expected a number of magnitude at most "),
         overflow.getMessage());
+    // 1.8e308 exceeds the largest double, (2 − 2^-52)·2^1023 ≈ 1.7976931348623157e308 (analytic), so it is out of
+    // range; the bound the message states must then lie below it (and read as that largest double), not be 1.8e308.
+    InputException edge = fails(HEADER + "\n1,7,1.8e308,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(edge, "bad.csv", 2, 3);
+    java.util.regex.Matcher bound = java.util.regex.Pattern.compile("at most ([0-9.eE+]+)").matcher(edge.getMessage());
+    assertTrue(bound.find(), edge.getMessage());
+    assertTrue(new java.math.BigDecimal(bound.group(1)).compareTo(new java.math.BigDecimal("1.8e308")) < 0,
+        edge.getMessage());
+    assertEquals(Double.MAX_VALUE, Double.parseDouble(bound.group(1)), edge.getMessage());
   }
 
   @Test
@@ -193,6 +202,22 @@ class EventFileReaderTest {
     InputException x = fails(HEADER + "\n1,7,1.5e308,3,A,1,1,1\n2,7,-1.5e308,3,A,1,1,1\n", Role.REFERENCE);
     assertTrue(x.getMessage().contains("column 'm'") && x.getMessage().contains("rescale the column"),
         x.getMessage());
+  }
+
+  @Test
+  void aSpreadRefusedForItsSquaresSaysSoAndOneThatFitsIsRead() throws IOException {
+    // m = 1e150, 0, -1e150 (weights one): mean 0 and population sd 1e150·√(2/3) ≈ 8.2e149, by hand; the squares
+    // (about 1e300) fit in a double, so the file is read.
+    Path f = write("wide.csv", HEADER + "\n1,7,1e150,3,A,1,1,1\n2,7,0,3,A,1,1,1\n3,7,-1e150,3,A,1,1,1\n");
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict());
+    assertEquals(0.0, c.result.featureMeans()[0]);
+    assertEquals(1e150 * Math.sqrt(2.0 / 3), c.result.featureSds()[0], 1e-12 * 1e150);
+    // 1e160, 0, -1e160: the sd (8.2e159) is within the range of doubles, but the squares (1e320) are not, so the
+    // refusal must name the squares and the size that fits, not claim the mean or sd leave the range.
+    InputException e = fails(HEADER + "\n1,7,1e160,3,A,1,1,1\n2,7,0,3,A,1,1,1\n3,7,-1e160,3,A,1,1,1\n",
+        Role.REFERENCE);
+    assertTrue(e.getMessage().contains("column 'm'") && e.getMessage().contains("squared deviations")
+        && e.getMessage().contains("about 1e150"), e.getMessage());
   }
 
   @Test
@@ -287,6 +312,18 @@ class EventFileReaderTest {
   }
 
   @Test
+  void weightsThatNearlyCancelAreNotTakenForOverflow() throws IOException {
+    // Weights 1, 1e-17, -1 (allowed negative weights): Σw = 1e-17 exactly in the compensated sum (1 + 1e-17 - 1,
+    // by hand), while a plain running sum reads 0, so the weighted mean is undefined (NaN), as for weights summing
+    // to zero. Small values, nothing near the range of doubles: the file is read, not refused as overflowing.
+    Path f = write("cancel.csv", HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,11.5,4,A,1e-17,1,1\n3,7,12.5,5,A,-1,1,1\n");
+    Collected c = read(f, Role.REFERENCE, ReadOptions.strict().with(WeightPolicy.ANY_FINITE));
+    assertEquals(3, c.result.rowsAccepted());
+    assertEquals(1e-17, c.result.sumOfWeights());
+    assertEquals(List.of(10.5, 11.5, 12.5), c.m);
+  }
+
+  @Test
   void quotedFieldWithNewlineKeepsLineNumbers() throws IOException {
     InputException e = fails(HEADER + "\n1,7,10.5,3,\"A\nB\",1,1,1\n2,7,x,3,A,1,1,1\n", Role.REFERENCE);
     assertPlace(e, "bad.csv", 4, 3);
@@ -305,6 +342,26 @@ class EventFileReaderTest {
     InputException past = fails(HEADER + "\n1,7,10.5,3,\"A\nB\"\"\",1,\"1,1\n2,7,1,1,A,1,1,1\n", Role.REFERENCE);
     assertPlace(past, "bad.csv", 3, 7);
     assertFalse(later.getMessage().contains("startline"), later.getMessage());
+  }
+
+  @Test
+  void unterminatedQuoteIsPlacedWithLoneCarriageReturnLineEnds() throws IOException {
+    // Lone CR ends lines (as in the rest of the reader): the quote opens on line 3 (header, row, row), field 5.
+    InputException cr = fails(HEADER + "\r1,7,10.5,3,A,1,1,1\r2,7,10.5,3,\"A,1,1,1\r", Role.REFERENCE);
+    assertPlace(cr, "bad.csv", 3, 5);
+    // a lone CR inside an earlier quoted field is a line end for the line count too: the open quote is on line 4
+    InputException inner = fails(HEADER + "\n1,7,10.5,3,\"A\rB\",1,1,1\n2,7,10.5,3,\"A,1,1,1\n",
+        Role.REFERENCE);
+    assertPlace(inner, "bad.csv", 4, 5);
+  }
+
+  @Test
+  void unterminatedQuoteInTheHeaderIsPlaced() throws IOException {
+    // event,run,"m,... : the quote opens on line 1 in field 3 and is never closed
+    InputException e = fails(HEADER.replace("m,", "\"m,") + "\n1,7,10.5,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(e, "bad.csv", 1, 3);
+    assertTrue(e.getMessage().contains("not closed before the end of the file"), e.getMessage());
+    assertFalse(e.getMessage().contains("startline"), e.getMessage());
   }
 
   @Test
