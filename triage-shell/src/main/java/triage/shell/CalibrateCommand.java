@@ -516,7 +516,8 @@ public final class CalibrateCommand implements Callable<Integer> {
         throw new InputException(index, "--inject-sample: the index has no sample '" + injectSample + "'");
       }
       if (sample.role() == Role.REFERENCE) {
-        throw usage("--inject-sample: '" + injectSample + "' is the reference sample; inject another sample");
+        throw new InputException(index, "--inject-sample: '" + injectSample + "' is the reference sample; inject "
+            + "another sample");
       }
       double[] w = c.store().weights(injectSample);
       for (int i = 0; i < w.length; i++) {

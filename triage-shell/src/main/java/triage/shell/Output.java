@@ -83,7 +83,6 @@ public final class Output {
   /** Two spaces between words: columns of a table. */
   private static final java.util.regex.Pattern TABLE_ROW = java.util.regex.Pattern.compile("\\S {2,}\\S");
 
-  /** Wraps prose at spaces, continuation lines indented two more than the first. */
   /**
    * A p-value for people to read: three significant digits, or "< 1e-300" when it is below the range of doubles
    * and has rounded to 0 (printing "0.00" would claim a certainty no test gives).
@@ -97,6 +96,7 @@ public final class Output {
     return value == 0 ? p(value) : "= " + p(value);
   }
 
+  /** Wraps prose at spaces, continuation lines indented two more than the first. */
   static void wrap(PrintWriter w, String line, int width) {
     int lead = 0;
     while (lead < line.length() && line.charAt(lead) == ' ') {

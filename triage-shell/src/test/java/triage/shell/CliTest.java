@@ -373,8 +373,12 @@ class CliTest {
     assertEquals(ExitCodes.INPUT, bad.code());
     assertTrue(bad.err().contains("'y' is not a feature of the index (features: x)"), bad.err());
     Run reused = run("stress", "--index", index.toString(), "--where", "x > 50", "--scale", "x_scale=x:0.2");
-    assertEquals(2, reused.code());
-    assertTrue(reused.err().contains("already a systematic"), reused.err());
+    assertEquals(ExitCodes.INPUT, reused.code());
+    assertTrue(reused.err().contains("already a systematic of the index's spec"), reused.err());
+    Run twice = run("stress", "--index", index.toString(), "--where", "x > 50", "--scale", "a=x:0.2", "--scale",
+        "a=x:0.1");
+    assertEquals(ExitCodes.USAGE, twice.code());
+    assertTrue(twice.err().contains("is given by another --scale too"), twice.err());
   }
 
   @Test
