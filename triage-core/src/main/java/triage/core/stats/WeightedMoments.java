@@ -12,7 +12,9 @@ import java.util.Locale;
  * <ul>
  *   <li>Empty: count 0, sums 0, mean and variances NaN.</li>
  *   <li>A single event: mean is its value, population variance 0, unbiased variance NaN.</li>
- *   <li>Zero or negative weights are accepted as given; when V₁ ≤ 0 the mean and variances are NaN.</li>
+ *   <li>Zero or negative weights are accepted as given; when V₁ ≤ 0 the mean and variances are NaN. From the first
+ *   such weight on, compensated sums about a fixed shift replace the incremental update (whose running Σ w could
+ *   pass through zero); positive weights alone never leave the incremental update.</li>
  * </ul>
  *
  * <p>Algorithm: the weighted incremental update of "Updating mean and variance estimates: an improved
@@ -45,6 +47,24 @@ public final class WeightedMoments {
   /** Running Σ w without compensation, used inside the update (positive weights keep it exact enough). */
   private double runningW;
 
+  /**
+   * Whether a zero or negative weight has been seen. Then the incremental update is left (its running Σ w can
+   * pass through or near zero, where it divides by it) for compensated sums about a fixed shift K:
+   * S1 = Σ w (x − K), S2 = Σ w (x − K)², with K the weighted mean when the switch happened (or the first value),
+   * so that mean = K + S1/Σw and Σ w (x − m)² = S2 − S1²/Σw. Sums of positive weights never switch, so their
+   * results are those of the incremental update.
+   */
+  private boolean shifted;
+
+  /** The shift K of the shifted sums. */
+  private double shift;
+
+  /** Σ w (x − K), compensated (shifted mode). */
+  private final NeumaierSum s1 = new NeumaierSum();
+
+  /** Σ w (x − K)², compensated (shifted mode). */
+  private final NeumaierSum s2 = new NeumaierSum();
+
   /** An empty accumulator. */
   public WeightedMoments() {
     // empty
@@ -57,17 +77,19 @@ public final class WeightedMoments {
 
   /** Adds a value with a weight. */
   public void accept(double x, double w) {
+    if (!shifted && !(w > 0)) {
+      toShifted(count == 0 ? x : mean);
+    }
     count++;
     sumW.add(w);
     sumW2.add(w * w);
-    double newW = runningW + w;
-    if (newW == 0) {
-      // Weights cancelled exactly: the mean is undefined until more weight arrives.
-      runningW = 0;
-      mean = 0;
-      m2 = 0;
+    if (shifted) {
+      double d = x - shift;
+      s1.add(w * d);
+      s2.add(w * d * d);
       return;
     }
+    double newW = runningW + w;
     double delta = x - mean;
     double r = delta * w / newW;
     mean += r;
@@ -75,9 +97,37 @@ public final class WeightedMoments {
     runningW = newW;
   }
 
+  /** Leaves the incremental update for shifted sums about {@code k} (see {@link #shifted}). */
+  private void toShifted(double k) {
+    shifted = true;
+    shift = k;
+    if (count > 0) {
+      // Σ w (x − K) and Σ w (x − K)² of what was seen so far, from its mean and m2 about that mean.
+      double d = mean - k;
+      s1.add(runningW * d);
+      s2.add(m2 + runningW * d * d);
+    }
+  }
+
   /** Merges another accumulator into this one. */
   public void combine(WeightedMoments other) {
     if (other.count == 0) {
+      return;
+    }
+    if (shifted || other.shifted) {
+      if (!shifted) {
+        toShifted(count == 0 ? other.centre() : mean);
+      }
+      // The other's Σ w (x − K) and Σ w (x − K)² about this shift.
+      double w = other.shifted ? other.sumW.value() : other.runningW;
+      double a1 = other.shifted ? other.s1.value() : 0;
+      double a2 = other.shifted ? other.s2.value() : other.m2;
+      double d = (other.shifted ? other.shift : other.mean) - shift;
+      s1.add(a1 + w * d);
+      s2.add(a2 + 2 * d * a1 + w * d * d);
+      count += other.count;
+      sumW.combine(other.sumW);
+      sumW2.combine(other.sumW2);
       return;
     }
     if (count == 0) {
@@ -122,17 +172,33 @@ public final class WeightedMoments {
    * {@link #sumOfWeights()} is a little above zero.
    */
   public boolean defined() {
-    return count > 0 && runningW > 0;
+    return count > 0 && (shifted ? sumW.value() > 0 : runningW > 0);
+  }
+
+  /** A value near the centre of the data (the shift or the running mean), for the shift of a merge. */
+  private double centre() {
+    return shifted ? shift : mean;
+  }
+
+  /** Σ w (x − m)² about the weighted mean. */
+  private double centredSquares() {
+    return shifted ? s2.value() - s1.value() * s1.value() / sumW.value() : m2;
   }
 
   /** The weighted mean, or NaN when empty or Σ w ≤ 0. */
   public double mean() {
-    return count == 0 || !(runningW > 0) ? Double.NaN : mean;
+    if (!defined()) {
+      return Double.NaN;
+    }
+    return shifted ? shift + s1.value() / sumW.value() : mean;
   }
 
   /** Σ w (x − m)² / Σ w, or NaN when empty or Σ w ≤ 0. */
   public double populationVariance() {
-    return count == 0 || !(runningW > 0) ? Double.NaN : Math.max(0, m2) / runningW;
+    if (!defined()) {
+      return Double.NaN;
+    }
+    return Math.max(0, centredSquares()) / (shifted ? sumW.value() : runningW);
   }
 
   /** Σ w (x − m)² / (V₁ − V₂/V₁); NaN for fewer than two values or a non-positive denominator. */
@@ -143,7 +209,7 @@ public final class WeightedMoments {
     if (count < 2 || !(denominator > 0)) {
       return Double.NaN;
     }
-    return Math.max(0, m2) / denominator;
+    return Math.max(0, centredSquares()) / denominator;
   }
 
   /** √{@link #variance()}. */

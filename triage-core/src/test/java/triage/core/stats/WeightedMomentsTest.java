@@ -124,4 +124,68 @@ class WeightedMomentsTest {
     assertEquals(0, one.populationVariance());
     assertTrue(Double.isNaN(one.variance()));
   }
+
+  @Test
+  void negativeWeightsGiveTheWeightedMomentsByHand() {
+    // (x, w) = (1, 2), (2, -1), (4, 1): Σw = 2, Σwx = 4, mean 2; Σw(x − 2)² = 2 + 0 + 4 = 6, population
+    // variance 3 (by hand). The negative weight arrives second, after the incremental update has started.
+    WeightedMoments m = new WeightedMoments();
+    m.accept(1, 2);
+    m.accept(2, -1);
+    m.accept(4, 1);
+    assertEquals(2.0, m.mean(), 1e-15);
+    assertEquals(3.0, m.populationVariance(), 1e-15);
+    // Weights that pass through zero on the way: (5, 1), (3, -1), (10, 1): Σw = 1, mean 5 - 3 + 10 = 12 (by hand;
+    // an update that restarts when the running Σw is 0 gives 10).
+    WeightedMoments z = new WeightedMoments();
+    z.accept(5, 1);
+    z.accept(3, -1);
+    z.accept(10, 1);
+    assertEquals(12.0, z.mean(), 1e-14);
+    // Weights that cancel: Σw = 0, so no mean (not a huge number made of rounding).
+    WeightedMoments c = new WeightedMoments();
+    c.accept(0.5, 0.1);
+    c.accept(0.7, 0.2);
+    c.accept(0.9, -0.1);
+    c.accept(1.1, -0.2);
+    assertTrue(Double.isNaN(c.mean()), "mean " + c.mean());
+    assertTrue(!c.defined());
+  }
+
+  @Test
+  void combiningWithNegativeWeightsEqualsOneStream() {
+    java.util.Random rng = new java.util.Random(11);
+    double[] x = new double[400];
+    double[] w = new double[400];
+    WeightedMoments all = new WeightedMoments();
+    for (int i = 0; i < x.length; i++) {
+      x[i] = 100 + rng.nextGaussian();
+      w[i] = rng.nextDouble() < 0.2 ? -rng.nextDouble() : 1 + rng.nextDouble();
+      all.accept(x[i], w[i]);
+    }
+    // Brute force in two passes: Σw, then Σw(x − mean)².
+    double sw = 0;
+    double swx = 0;
+    for (int i = 0; i < x.length; i++) {
+      sw += w[i];
+      swx += w[i] * x[i];
+    }
+    double mean = swx / sw;
+    double ss = 0;
+    for (int i = 0; i < x.length; i++) {
+      ss += w[i] * (x[i] - mean) * (x[i] - mean);
+    }
+    assertEquals(mean, all.mean(), 1e-12);
+    assertEquals(ss / sw, all.populationVariance(), 1e-10);
+    for (int cut : new int[] {0, 1, 57, 200, 399, 400}) {
+      WeightedMoments a = new WeightedMoments();
+      WeightedMoments b = new WeightedMoments();
+      for (int i = 0; i < x.length; i++) {
+        (i < cut ? a : b).accept(x[i], w[i]);
+      }
+      a.combine(b);
+      assertEquals(mean, a.mean(), 1e-12, "cut " + cut);
+      assertEquals(ss / sw, a.populationVariance(), 1e-10, "cut " + cut);
+    }
+  }
 }
