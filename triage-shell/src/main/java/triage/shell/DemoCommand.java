@@ -241,19 +241,7 @@ public final class DemoCommand implements Callable<Integer> {
   private JsonNode run(String title, String... args) {
     say("      $ triage %s", String.join(" ", quoted(args)));
     Object[] last = new Object[1];
-    // A demo run from a script (triage run --json) collects the demo's own result through the same sink: keep it.
-    java.util.function.Consumer<Object> previous = Output.RESULTS.get();
-    Output.RESULTS.set(v -> last[0] = v);
-    int code;
-    try {
-      code = Main.run(args, human, err);
-    } finally {
-      if (previous == null) {
-        Output.RESULTS.remove();
-      } else {
-        Output.RESULTS.set(previous);
-      }
-    }
+    int code = Output.capture(last, () -> Main.run(args, human, err));
     if (code != ExitCodes.OK || last[0] == null) {
       err.printf(Locale.ROOT, "triage: the demo stopped at '%s' (exit %d)%n", title, code);
       err.flush();

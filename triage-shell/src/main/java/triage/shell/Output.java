@@ -17,16 +17,34 @@ public final class Output {
       .disable(SerializationFeature.FAIL_ON_EMPTY_BEANS);
 
   /**
-   * The width text must fit: the console's terminal width while a console runs, else {@code COLUMNS} when set,
-   * else 0 (no limit: pipes and files get whole lines).
-   */
-  /**
    * Where this thread's commands also hand their result objects (the demo collects them for its report);
    * unset, results go only to {@code --json}.
    */
   static final ThreadLocal<java.util.function.Consumer<Object>> RESULTS = new ThreadLocal<>();
 
+  /**
+   * The width text must fit: the console's terminal width while a console runs, else {@code COLUMNS} when set,
+   * else 0 (no limit: pipes and files get whole lines).
+   */
   static volatile java.util.function.IntSupplier terminalWidth = Output::columnsVariable;
+
+  /**
+   * Runs a command with the result object it hands over caught in {@code into[0]}, then restores the thread's
+   * previous result sink (a demo or a script may itself be running inside a script run).
+   */
+  static int capture(Object[] into, java.util.function.IntSupplier command) {
+    java.util.function.Consumer<Object> previous = RESULTS.get();
+    RESULTS.set(v -> into[0] = v);
+    try {
+      return command.getAsInt();
+    } finally {
+      if (previous == null) {
+        RESULTS.remove();
+      } else {
+        RESULTS.set(previous);
+      }
+    }
+  }
 
   /** Whether JSON was asked for. */
   private final boolean json;

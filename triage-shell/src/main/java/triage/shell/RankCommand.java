@@ -245,6 +245,6 @@ public final class RankCommand implements Callable<Integer> {
 
   /** A p-value in three digits, or '-' when not computed. */
   private static String p(double value) {
-    return Double.isNaN(value) ? "-" : String.format(java.util.Locale.ROOT, "%.3g", value);
+    return Double.isNaN(value) ? "-" : Output.p(value);
   }
 }

@@ -81,18 +81,8 @@ public final class RunCommand implements Callable<Integer> {
         throw new InputException(script, i + 1, 0, "unbalanced quotes: " + e.getMessage(), null);
       }
       Object[] result = new Object[1];
-      java.util.function.Consumer<Object> previous = Output.RESULTS.get();
-      Output.RESULTS.set(v -> result[0] = v);
-      int code;
-      try {
-        code = session.execute(line, words, out, err);
-      } finally {
-        if (previous == null) {
-          Output.RESULTS.remove();
-        } else {
-          Output.RESULTS.set(previous);
-        }
-      }
+      List<String> lineWords = words;
+      int code = Output.capture(result, () -> session.execute(line, lineWords, out, err));
       if (code < 0) {
         break;
       }

@@ -27,6 +27,11 @@ final class LogTail {
   private static final double TINY = 1e-300;
   private static final int MAX_TERMS = 100_000;
 
+  /** Lentz's guard: a denominator of magnitude below TINY is replaced by TINY (modified Lentz method). */
+  private static double awayFromZero(double x) {
+    return Math.abs(x) < TINY ? TINY : x;
+  }
+
   private LogTail() {
   }
 
@@ -54,9 +59,9 @@ final class LogTail {
       double an = -i * (i - a);
       b += 2;
       d = an * d + b;
-      d = Math.abs(d) < TINY ? TINY : d;
+      d = awayFromZero(d);
       c = b + an / c;
-      c = Math.abs(c) < TINY ? TINY : c;
+      c = awayFromZero(c);
       d = 1 / d;
       double delta = d * c;
       h *= delta;
@@ -74,23 +79,23 @@ final class LogTail {
     double qam = a - 1;
     double c = 1;
     double d = 1 - qab * x / qap;
-    d = Math.abs(d) < TINY ? TINY : d;
+    d = awayFromZero(d);
     d = 1 / d;
     double h = d;
     for (int m = 1; m < MAX_TERMS; m++) {
       int m2 = 2 * m;
       double aa = m * (b - m) * x / ((qam + m2) * (a + m2));
       d = 1 + aa * d;
-      d = Math.abs(d) < TINY ? TINY : d;
+      d = awayFromZero(d);
       c = 1 + aa / c;
-      c = Math.abs(c) < TINY ? TINY : c;
+      c = awayFromZero(c);
       d = 1 / d;
       h *= d * c;
       aa = -(a + m) * (qab + m) * x / ((a + m2) * (qap + m2));
       d = 1 + aa * d;
-      d = Math.abs(d) < TINY ? TINY : d;
+      d = awayFromZero(d);
       c = 1 + aa / c;
-      c = Math.abs(c) < TINY ? TINY : c;
+      c = awayFromZero(c);
       d = 1 / d;
       double delta = d * c;
       h *= delta;

@@ -20,7 +20,8 @@ def write(name, header, rows, note):
         f.write("# " + note + "\n")
         f.write(",".join(header) + "\n")
         for r in rows:
-            f.write(",".join(repr(float(v)) if not isinstance(v, int) else str(v) for v in r) + "\n")
+            f.write(",".join(v if isinstance(v, str) else str(v) if isinstance(v, int) else repr(float(v))
+                             for v in r) + "\n")
 
 
 # 1. chi-squared dof fit: data, scipy chi2.fit(floc=0, fscale=1) and the exact root of the score equation
@@ -203,17 +204,9 @@ for n, b, sig in [(772, 1228, 44), (50, 100, 3), (1000, 2000, 10)]:
 for n, b in [(700, 1228), (50, 60), (10, 40)]:
     q = float(special.gammaincc(n, b))
     deficit.append(["poisson", float(n), float(b), 0.0, q, float(-stats.norm.isf(q))])
-with open("z-deficit.csv", "w") as f:
-    f.write(VERSIONS)
-    f.write("# deficits: q = 1 - p by scipy.special.betaincc / gammaincc, z = -scipy.stats.norm.isf(q); kind zbi "
-            "(a = n, b = b, with sigma_b), poisson (a = n, b = b)\n")
-    f.write("kind,a,b,sigma_b,q,z\n")
-    for r in deficit:
-        f.write(r[0] + "," + ",".join(repr(float(v)) for v in r[1:]) + "\n")
-with open("z-underflow.csv", "w") as f:
-    f.write(VERSIONS)
-    f.write("# ln p in mpmath (60 digits) and z solving ln(erfc(z/sqrt2)/2) = ln p; kind zbi (a = n, b = b, with sigma_b), "
-            "poisson (a = n, b = b), chi2 (a = t, b = dof)\n")
-    f.write("kind,a,b,sigma_b,ln_p,z\n")
-    for r in rows:
-        f.write(r[0] + "," + ",".join(repr(float(v)) for v in r[1:]) + "\n")
+write("z-deficit.csv", ["kind", "a", "b", "sigma_b", "q", "z"], deficit,
+      "deficits: q = 1 - p by scipy.special.betaincc / gammaincc, z = -scipy.stats.norm.isf(q); kind zbi "
+      "(a = n, b = b, with sigma_b), poisson (a = n, b = b)")
+write("z-underflow.csv", ["kind", "a", "b", "sigma_b", "ln_p", "z"], rows,
+      "ln p in mpmath (60 digits) and z solving ln(erfc(z/sqrt2)/2) = ln p; kind zbi (a = n, b = b, with sigma_b), "
+      "poisson (a = n, b = b), chi2 (a = t, b = dof)")
