@@ -96,8 +96,10 @@ public final class FitCommand implements Callable<Integer> {
   /** Training options. */
   static final class TrainingOptions {
     /** Optimiser. */
-    @Option(names = "--optimiser", defaultValue = "lbfgs", paramLabel = "lbfgs|adam",
-        description = "Projected L-BFGS in the clip box (default) or Adam for a fixed number of epochs.")
+    @Option(names = "--optimiser", paramLabel = "profiled|lbfgs|adam",
+        description = "profiled: projected L-BFGS over the hidden layers, the output layer solved exactly at every "
+            + "step (the default for the extended loss); lbfgs: projected L-BFGS over all parameters (the default "
+            + "for cross-entropy and for a network without hidden layers); adam: Adam for a fixed number of epochs.")
     String optimiser;
 
     /** Iteration cap. */
@@ -291,11 +293,14 @@ public final class FitCommand implements Callable<Integer> {
   }
 
   private FitSettings settings(double clip) {
-    OptimiserKind optimiser = switch (training.optimiser) {
+    String chosen = training.optimiser != null ? training.optimiser
+        : "extended".equals(model.loss) && !model.layers.isEmpty() ? "profiled" : "lbfgs";
+    OptimiserKind optimiser = switch (chosen) {
       case "lbfgs" -> OptimiserKind.PROJECTED_LBFGS;
+      case "profiled" -> OptimiserKind.PROFILED_LBFGS;
       case "adam" -> OptimiserKind.ADAM;
       default -> throw new CommandLine.ParameterException(spec.commandLine(),
-          "--optimiser must be lbfgs or adam, not '" + training.optimiser + "'");
+          "--optimiser must be lbfgs, profiled or adam, not '" + training.optimiser + "'");
     };
     LossKind loss = switch (model.loss) {
       case "extended" -> LossKind.EXTENDED_LIKELIHOOD;
