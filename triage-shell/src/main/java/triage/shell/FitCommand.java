@@ -96,10 +96,11 @@ public final class FitCommand implements Callable<Integer> {
   /** Training options. */
   static final class TrainingOptions {
     /** Optimiser. */
-    @Option(names = "--optimiser", paramLabel = "profiled|lbfgs|adam",
-        description = "profiled: projected L-BFGS over the hidden layers, the output layer solved exactly at every "
-            + "step (the default for the extended loss); lbfgs: projected L-BFGS over all parameters (the default "
-            + "for cross-entropy and for a network without hidden layers); adam: Adam for a fixed number of epochs.")
+    @Option(names = "--optimiser", defaultValue = "lbfgs", paramLabel = "lbfgs|profiled|adam",
+        description = "lbfgs: projected L-BFGS in the clip box (default); profiled: the same over the hidden layers, "
+            + "the output layer solved exactly at every step (extended loss only; often fewer evaluations when the "
+            + "observed sample is small against the reference, see DEVELOPERS.md); adam: Adam for a fixed number of "
+            + "epochs.")
     String optimiser;
 
     /** Iteration cap. */
@@ -293,9 +294,7 @@ public final class FitCommand implements Callable<Integer> {
   }
 
   private FitSettings settings(double clip) {
-    String chosen = training.optimiser != null ? training.optimiser
-        : "extended".equals(model.loss) && !model.layers.isEmpty() ? "profiled" : "lbfgs";
-    OptimiserKind optimiser = switch (chosen) {
+    OptimiserKind optimiser = switch (training.optimiser) {
       case "lbfgs" -> OptimiserKind.PROJECTED_LBFGS;
       case "profiled" -> OptimiserKind.PROFILED_LBFGS;
       case "adam" -> OptimiserKind.ADAM;

@@ -15,7 +15,8 @@ package triage.core.ratio;
  *
  * <p>Why: with the output layer free, L-BFGS spends most of its iterations re-balancing the output weights against
  * the hidden units (saturated units make ĥ's columns nearly collinear with the bias); solved exactly, the 5D fits of
- * {@code bench fit} at clip 9 need about a fifth of the evaluations (see DEVELOPERS.md, "Measured figures").
+ * {@code bench fit} at clip 9 need about a fifth of the evaluations, at about 2.3× the cost each; on the demo's index
+ * (ten times the observed events) they did not need fewer (see DEVELOPERS.md, "Measured figures").
  *
  * <p>Deterministic: the inner sums are taken per chunk of {@link Objective#CHUNK} events, in event order, and the
  * chunks' partials are added in chunk order, with {@link FastExp} and fused multiply-adds only, so the result does not

@@ -345,7 +345,7 @@ public final class BenchCommand implements Runnable {
     double clip;
 
     /** Optimiser of the toy fits. */
-    @Option(names = "--optimiser", defaultValue = "profiled", paramLabel = "profiled|lbfgs",
+    @Option(names = "--optimiser", defaultValue = "lbfgs", paramLabel = "lbfgs|profiled",
         description = "Optimiser of the toy fits, as `fit --optimiser` (default: ${DEFAULT-VALUE}, as `fit`).")
     String optimiser;
 
