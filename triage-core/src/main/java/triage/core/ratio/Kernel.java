@@ -18,12 +18,35 @@ interface Kernel {
   /** Adds the contributions of events [start, end) (multiples of TILE) to {@code ws.lanes}. */
   void accumulate(Batch batch, double[] theta, int start, int end, Batch.Workspace ws);
 
+  /** The hidden layers' forward pass of the tile at event {@code ts}, into {@code ws.act} (as {@link #accumulate}). */
+  void forwardTile(Batch batch, double[] theta, int ts, Batch.Workspace ws);
+
   /**
    * Writes the hidden layers' activations of events [start, end) (multiples of TILE) into {@code acts[l][j·n + i]}
    * (layer l + 1, unit j, event i, n = the batch's padded size) for every l whose array is not null: the same forward
    * pass as {@link #accumulate}, bit for bit, without the output layer. Needs at least one hidden layer.
    */
-  void hidden(Batch batch, double[] theta, int start, int end, Batch.Workspace ws, double[][] acts);
+  default void hidden(Batch batch, double[] theta, int start, int end, Batch.Workspace ws, double[][] acts) {
+    for (int ts = start; ts < end; ts += TILE) {
+      forwardTile(batch, theta, ts, ws);
+      for (int l = 0; l < acts.length; l++) {
+        if (acts[l] != null) {
+          for (int j = 0; j < batch.width[l + 1]; j++) {
+            System.arraycopy(ws.act[l], j * TILE, acts[l], j * batch.n + ts, TILE);
+          }
+        }
+      }
+    }
+  }
+
+  /** Copies the kept activations of the tile at event {@code ts} into {@code ws.act} (the inverse of {@link #hidden}). */
+  static void loadTile(Batch batch, double[][] acts, int ts, Batch.Workspace ws) {
+    for (int l = 0; l < acts.length; l++) {
+      for (int j = 0; j < batch.width[l + 1]; j++) {
+        System.arraycopy(acts[l], j * batch.n + ts, ws.act[l], j * TILE, TILE);
+      }
+    }
+  }
 
   /**
    * {@link #accumulate} with the hidden layers' activations read from {@code acts} (every layer, as {@link #hidden}

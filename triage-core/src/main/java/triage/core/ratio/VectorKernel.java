@@ -113,18 +113,8 @@ final class VectorKernel implements Kernel {
   }
 
   @Override
-  public void hidden(Batch b, double[] th, int start, int end, Batch.Workspace ws, double[][] acts) {
-    final int hidden = b.width.length - 2;
-    for (int ts = start; ts < end; ts += TILE) {
-      forward(b, th, ts, ws);
-      for (int l = 0; l < hidden; l++) {
-        if (acts[l] != null) {
-          for (int j = 0; j < b.width[l + 1]; j++) {
-            System.arraycopy(ws.act[l], j * TILE, acts[l], j * b.n + ts, TILE);
-          }
-        }
-      }
-    }
+  public void forwardTile(Batch b, double[] th, int ts, Batch.Workspace ws) {
+    forward(b, th, ts, ws);
   }
 
   @Override
@@ -228,11 +218,7 @@ final class VectorKernel implements Kernel {
     if (acts == null) {
       forward(b, th, ts, ws);
     } else {
-      for (int l = 0; l < hidden; l++) {
-        for (int j = 0; j < b.width[l + 1]; j++) {
-          System.arraycopy(acts[l], j * n + ts, ws.act[l], j * TILE, TILE);
-        }
-      }
+      Kernel.loadTile(b, acts, ts, ws);
     }
     final int lo = hidden + 1;
     final int nlast = b.width[hidden];
