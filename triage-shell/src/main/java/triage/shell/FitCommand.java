@@ -96,8 +96,11 @@ public final class FitCommand implements Callable<Integer> {
   /** Training options. */
   static final class TrainingOptions {
     /** Optimiser. */
-    @Option(names = "--optimiser", defaultValue = "lbfgs", paramLabel = "lbfgs|adam",
-        description = "Projected L-BFGS in the clip box (default) or Adam for a fixed number of epochs.")
+    @Option(names = "--optimiser", defaultValue = "lbfgs", paramLabel = "lbfgs|profiled|adam",
+        description = "lbfgs: projected L-BFGS in the clip box (default); profiled: the same over the hidden layers, "
+            + "the output layer solved exactly at every step (extended loss only; often fewer evaluations when the "
+            + "observed sample is small against the reference, see DEVELOPERS.md); adam: Adam for a fixed number of "
+            + "epochs.")
     String optimiser;
 
     /** Iteration cap. */
@@ -293,9 +296,10 @@ public final class FitCommand implements Callable<Integer> {
   private FitSettings settings(double clip) {
     OptimiserKind optimiser = switch (training.optimiser) {
       case "lbfgs" -> OptimiserKind.PROJECTED_LBFGS;
+      case "profiled" -> OptimiserKind.PROFILED_LBFGS;
       case "adam" -> OptimiserKind.ADAM;
       default -> throw new CommandLine.ParameterException(spec.commandLine(),
-          "--optimiser must be lbfgs or adam, not '" + training.optimiser + "'");
+          "--optimiser must be lbfgs, profiled or adam, not '" + training.optimiser + "'");
     };
     LossKind loss = switch (model.loss) {
       case "extended" -> LossKind.EXTENDED_LIKELIHOOD;

@@ -331,6 +331,17 @@ class CliTest {
       assertEquals(cmp.get("expectedStatError").asDouble(), row.get("expectedStatError").asDouble(),
           1e-12 * cmp.get("expectedStatError").asDouble(), row.toString());
     }
+    // The profiled variant from the command line: recorded in the settings, t of the same kind; refused with the
+    // cross-entropy loss (a usage error, before any fitting).
+    Run profiled = run("fit", "--index", index.toString(), "--layers", "3", "--max-iterations", "200", "--threads",
+        "2", "--normalise", "observed", "--optimiser", "profiled", "--json");
+    assertEquals(0, profiled.code(), profiled.err());
+    JsonNode pj = JSON.readTree(profiled.out());
+    assertEquals("PROFILED_LBFGS", pj.get("settings").get("optimiser").asText(), pj.toString());
+    assertTrue(pj.get("testStatistic").asDouble() > 20, pj.toString());
+    Run bce = run("fit", "--index", index.toString(), "--optimiser", "profiled", "--loss", "cross-entropy");
+    assertEquals(ExitCodes.USAGE, bce.code(), bce.err());
+    assertTrue(bce.err().contains("extended loss"), bce.err());
   }
 
   @Test

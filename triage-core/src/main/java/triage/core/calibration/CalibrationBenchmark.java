@@ -8,6 +8,7 @@ import java.util.List;
 import java.util.Locale;
 import triage.core.ratio.FitBenchmark;
 import triage.core.ratio.FitSettings;
+import triage.core.ratio.OptimiserKind;
 
 /**
  * Speed of a calibration (a program, not a test: nothing is asserted): null toys drawn from a
@@ -22,14 +23,14 @@ public final class CalibrationBenchmark {
   }
 
   /** Runs {@code toys} null toys and prints the figures to {@code out}. */
-  public static void run(PrintStream out, int threads, int nRef, int nObs, int d, int toys, double clip)
-      throws IOException {
+  public static void run(PrintStream out, int threads, int nRef, int nObs, int d, int toys, double clip,
+      OptimiserKind optimiser) throws IOException {
     double[][] ref = FitBenchmark.gaussianReference(d, nRef, 7L);
     List<String> names = new ArrayList<>();
     for (int k = 0; k < d; k++) {
       names.add("x" + k);
     }
-    FitSettings settings = FitSettings.defaults().withThreads(threads).withClip(clip);
+    FitSettings settings = FitSettings.defaults().withThreads(threads).withClip(clip).withOptimiser(optimiser);
     out.printf(Locale.ROOT, "CalibrationBenchmark: %dD, reference %d, N_exp %d, network %s, clip %.1f, %s, "
         + "threads %d, %d toys%n", d, nRef, nObs, settings.hiddenWidths(), settings.clip(), settings.optimiser(),
         threads, toys);

@@ -120,6 +120,10 @@ final class Batch {
     final double[] tmp;
     /** Eight accumulator lanes per slot: slot 0 loss, slot 1+p gradient of θ_p. */
     final double[] lanes;
+    /** Second scratch per event of the tile. */
+    final double[] tmp2;
+    /** Eight lanes per slot of {@link Kernel#outputSums} (see there). */
+    final double[] outputLanes;
 
     Workspace(Architecture arch) {
       int hidden = arch.hiddenWidths().size();
@@ -133,6 +137,8 @@ final class Batch {
       dOut = new double[Kernel.TILE];
       tmp = new double[Kernel.TILE];
       lanes = new double[(arch.parameterCount() + 1) * Kernel.LANES];
+      tmp2 = new double[Kernel.TILE];
+      outputLanes = new double[Kernel.outputSlots(arch.width(hidden)) * Kernel.LANES];
     }
   }
 }

@@ -126,43 +126,9 @@ public final class FitBenchmark {
       out.printf(Locale.ROOT, "  arithmetic limit: %d exp + %d div + %d other ops per event -> %.3f ms per evaluation;"
           + " achieved/limit = %.2f%n", h + 1, h, ops, limit * 1e3, vectorEval / limit);
     }
-    FrameworkExport.Trajectory trajectory = new FrameworkExport.Trajectory();
-    FitResult lb = RatioTrainer.fit(data, base,
-        exportDir != null ? trajectory : TrainingListener.NONE);
-    double lbSeconds = lb.elapsedSeconds();
-    out.printf(Locale.ROOT, "  loss at L-BFGS iteration (log): %s%n", progress(lb.log()));
-    out.printf(Locale.ROOT, "  projected L-BFGS: %.3f s, %d iterations, %d evaluations (%.3f ms each), t = %.4f,"
-            + " loss = %.6f, converged=%s (%s), |pg|=%.2e%n",
-        lbSeconds, lb.iterations(), lb.lossEvaluations(), lbSeconds / lb.lossEvaluations() * 1e3,
-        lb.testStatistic(), lb.finalLoss(), lb.converged(), lb.stopReason(),
-        lb.starts().get(0).projectedGradientNorm());
-    if (exportDir != null) {
-      try {
-        FrameworkExport.write(exportDir, name, data, base, lb, trajectory);
-      } catch (java.io.IOException e) {
-        throw new java.io.UncheckedIOException(e);
-      }
-      out.printf(Locale.ROOT, "  exported the %s problem and trajectory to %s%n", name, exportDir);
-    }
-    if (starts > 1) {
-      FitResult lb4 = RatioTrainer.fit(data, base.withRestarts(starts));
-      out.printf(Locale.ROOT, "  projected L-BFGS, %d starts: %.3f s, %d evaluations, best t = %.4f, start losses %s%n",
-          starts, lb4.elapsedSeconds(), lb4.lossEvaluations(), lb4.testStatistic(),
-          java.util.Arrays.toString(lb4.restartLosses()));
-      // the fit is chaotic at clip 9 (contributor guide), so one seed's time and t are one draw:
-      // every start's figures, and their spread
-      double[] secs = new double[starts];
-      double[] ts = new double[starts];
-      for (RestartSummary r : lb4.starts()) {
-        out.printf(Locale.ROOT, "    start %d: %.3f s, %d iterations, %d evaluations, t = %.4f, %s%n", r.index(),
-            r.elapsedSeconds(), r.iterations(), r.lossEvaluations(), r.testStatistic(), r.stopReason());
-        secs[r.index()] = r.elapsedSeconds();
-        ts[r.index()] = r.testStatistic();
-      }
-      java.util.Arrays.sort(secs);
-      java.util.Arrays.sort(ts);
-      out.printf(Locale.ROOT, "    over the %d starts: seconds %.3f-%.3f (median %.3f), t %.4f-%.4f (median %.4f)%n",
-          starts, secs[0], secs[starts - 1], median(secs), ts[0], ts[starts - 1], median(ts));
+    for (OptimiserKind kind : new OptimiserKind[] {OptimiserKind.PROJECTED_LBFGS, OptimiserKind.PROFILED_LBFGS}) {
+      lbfgsCase(out, name, data, base.withOptimiser(kind), starts, kind == OptimiserKind.PROJECTED_LBFGS ? exportDir
+          : null);
     }
     for (double lr : new double[] {1e-3, 1e-2}) {
       FitResult ad = RatioTrainer.fit(data, base.withOptimiser(OptimiserKind.ADAM)
@@ -170,6 +136,53 @@ public final class FitBenchmark {
       out.printf(Locale.ROOT, "  Adam lr=%.0e, %d epochs: %.3f s (%.3f ms/epoch), t = %.4f, loss = %.6f, converged=%s%n",
           lr, adamEpochs, ad.elapsedSeconds(), ad.elapsedSeconds() / adamEpochs * 1e3,
           ad.testStatistic(), ad.finalLoss(), ad.converged());
+    }
+  }
+
+  /** One L-BFGS variant: a single-start fit with its log, then every start of a multi-start fit. */
+  private static void lbfgsCase(PrintStream out, String name, TrainingData data, FitSettings settings, int starts,
+                java.nio.file.Path exportDir) {
+    String label = settings.optimiser() == OptimiserKind.PROFILED_LBFGS ? "profiled L-BFGS" : "projected L-BFGS";
+    FrameworkExport.Trajectory trajectory = new FrameworkExport.Trajectory();
+    FitResult lb = RatioTrainer.fit(data, settings, exportDir != null ? trajectory : TrainingListener.NONE);
+    double lbSeconds = lb.elapsedSeconds();
+    out.printf(Locale.ROOT, "  %s, loss at iteration (log): %s%n", label, progress(lb.log()));
+    out.printf(Locale.ROOT, "  %s: %.3f s, %d iterations, %d evaluations (%.3f ms each), t = %.4f,"
+            + " loss = %.6f, converged=%s (%s), |pg|=%.2e%n",
+        label, lbSeconds, lb.iterations(), lb.lossEvaluations(), lbSeconds / lb.lossEvaluations() * 1e3,
+        lb.testStatistic(), lb.finalLoss(), lb.converged(), lb.stopReason(),
+        lb.starts().get(0).projectedGradientNorm());
+    if (exportDir != null) {
+      try {
+        FrameworkExport.write(exportDir, name, data, settings, lb, trajectory);
+      } catch (java.io.IOException e) {
+        throw new java.io.UncheckedIOException(e);
+      }
+      out.printf(Locale.ROOT, "  exported the %s problem and trajectory to %s%n", name, exportDir);
+    }
+    if (starts > 1) {
+      FitResult lb4 = RatioTrainer.fit(data, settings.withRestarts(starts));
+      out.printf(Locale.ROOT, "  %s, %d starts: %.3f s, %d evaluations, best t = %.4f, start losses %s%n",
+          label, starts, lb4.elapsedSeconds(), lb4.lossEvaluations(), lb4.testStatistic(),
+          java.util.Arrays.toString(lb4.restartLosses()));
+      // the fit is chaotic at clip 9 (contributor guide), so one seed's time and t are one draw:
+      // every start's figures, and their spread
+      double[] secs = new double[starts];
+      double[] ts = new double[starts];
+      double[] evals = new double[starts];
+      for (RestartSummary r : lb4.starts()) {
+        out.printf(Locale.ROOT, "    start %d: %.3f s, %d iterations, %d evaluations, t = %.4f, %s%n", r.index(),
+            r.elapsedSeconds(), r.iterations(), r.lossEvaluations(), r.testStatistic(), r.stopReason());
+        secs[r.index()] = r.elapsedSeconds();
+        ts[r.index()] = r.testStatistic();
+        evals[r.index()] = r.lossEvaluations();
+      }
+      java.util.Arrays.sort(secs);
+      java.util.Arrays.sort(ts);
+      java.util.Arrays.sort(evals);
+      out.printf(Locale.ROOT, "    over the %d starts: seconds %.3f-%.3f (median %.3f), evaluations %.0f-%.0f (median %.1f),"
+          + " t %.4f-%.4f (median %.4f)%n", starts, secs[0], secs[starts - 1], median(secs), evals[0],
+          evals[starts - 1], median(evals), ts[0], ts[starts - 1], median(ts));
     }
   }
 

@@ -53,6 +53,11 @@ public record FitSettings(List<Integer> hiddenWidths, Activation activation, Los
         || kernel == null) {
       throw new IllegalArgumentException("null setting");
     }
+    if (optimiser == OptimiserKind.PROFILED_LBFGS
+        && (loss != LossKind.EXTENDED_LIKELIHOOD || hiddenWidths.isEmpty())) {
+      throw new IllegalArgumentException("the profiled optimiser needs the extended loss and at least one hidden "
+          + "layer (its output layer is solved exactly); use lbfgs");
+    }
     if (!(clip > 0) || Double.isInfinite(clip)) {
       throw new IllegalArgumentException("clip must be finite and > 0: " + clip);
     }

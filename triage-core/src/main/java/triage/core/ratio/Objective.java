@@ -43,6 +43,12 @@ final class Objective implements DifferentiableFunction, AutoCloseable {
   private final AtomicInteger next = new AtomicInteger();
   /** Parameters of the evaluation in progress. */
   private double[] current;
+  /** Stored hidden-layer activations of the evaluation in progress (see {@link Kernel#accumulateFrom}), or null. */
+  private double[][] currentActs;
+  /** Work of the pass in progress, per chunk. */
+  private ChunkTask task;
+  /** The loss-and-gradient pass. */
+  private final ChunkTask gradientTask = this::gradientChunk;
   /** Number of evaluations so far. */
   private long evaluations;
 
@@ -92,29 +98,68 @@ final class Objective implements DifferentiableFunction, AutoCloseable {
     return evaluations;
   }
 
-  @Override
-  public double valueAndGradient(double[] theta, double[] gradient) {
-    current = theta;
+  /** Work on one chunk of events [start, end), with the workspace of the worker that runs it. */
+  @FunctionalInterface
+  interface ChunkTask {
+    /** Does the chunk's work. */
+    void run(int chunk, int start, int end, Batch.Workspace ws);
+  }
+
+  /** Number of chunks of {@link #CHUNK} events. */
+  int chunks() {
+    return chunks;
+  }
+
+  /**
+   * Runs {@code work} once for every chunk, on this objective's workers (chunks in any order, so the task must
+   * write its results per chunk).
+   */
+  void forEachChunk(ChunkTask work) {
+    task = work;
     next.set(0);
     if (pool == null) {
       work(workspaces[0]);
-    } else {
-      List<Future<Void>> futures = new ArrayList<>(tasks.size());
-      for (Callable<Void> task : tasks) {
-        futures.add(pool.submit(task));
-      }
-      work(workspaces[0]);
-      try {
-        for (Future<Void> f : futures) {
-          f.get();
-        }
-      } catch (InterruptedException e) {
-        Thread.currentThread().interrupt();
-        throw new IllegalStateException("interrupted during evaluation", e);
-      } catch (ExecutionException e) {
-        throw new IllegalStateException("evaluation failed", e.getCause());
-      }
+      return;
     }
+    List<Future<Void>> futures = new ArrayList<>(tasks.size());
+    for (Callable<Void> t : tasks) {
+      futures.add(pool.submit(t));
+    }
+    work(workspaces[0]);
+    try {
+      for (Future<Void> f : futures) {
+        f.get();
+      }
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+      throw new IllegalStateException("interrupted during evaluation", e);
+    } catch (ExecutionException e) {
+      throw new IllegalStateException("evaluation failed", e.getCause());
+    }
+  }
+
+  /** The kernel in use. */
+  Kernel kernel() {
+    return kernel;
+  }
+
+  /**
+   * {@link #valueAndGradient(double[], double[])} with every hidden layer's activations for θ already computed (by
+   * {@link Kernel#hidden}): the same result, bit for bit, without the forward pass.
+   */
+  double valueAndGradient(double[] theta, double[][] acts, double[] gradient) {
+    currentActs = acts;
+    try {
+      return valueAndGradient(theta, gradient);
+    } finally {
+      currentActs = null;
+    }
+  }
+
+  @Override
+  public double valueAndGradient(double[] theta, double[] gradient) {
+    current = theta;
+    forEachChunk(gradientTask);
     evaluations++;
     double loss = 0;
     for (int q = 0; q < p; q++) {
@@ -131,22 +176,29 @@ final class Objective implements DifferentiableFunction, AutoCloseable {
   }
 
   private void work(Batch.Workspace ws) {
-    double[] theta = current;
-    double[] lanes = ws.lanes;
+    ChunkTask work = task;
     for (int c = next.getAndIncrement(); c < chunks; c = next.getAndIncrement()) {
-      java.util.Arrays.fill(lanes, 0.0);
       int start = c * CHUNK;
-      int end = Math.min(batch.n, start + CHUNK);
-      kernel.accumulate(batch, theta, start, end, ws);
-      double[] part = partials[c];
-      for (int q = 0; q <= p; q++) {
-        int o = q * Kernel.LANES;
-        double s = lanes[o];
-        for (int l = 1; l < Kernel.LANES; l++) {
-          s += lanes[o + l];
-        }
-        part[q] = s;
+      work.run(c, start, Math.min(batch.n, start + CHUNK), ws);
+    }
+  }
+
+  private void gradientChunk(int c, int start, int end, Batch.Workspace ws) {
+    double[] lanes = ws.lanes;
+    java.util.Arrays.fill(lanes, 0.0);
+    if (currentActs == null) {
+      kernel.accumulate(batch, current, start, end, ws);
+    } else {
+      kernel.accumulateFrom(batch, current, currentActs, start, end, ws);
+    }
+    double[] part = partials[c];
+    for (int q = 0; q <= p; q++) {
+      int o = q * Kernel.LANES;
+      double s = lanes[o];
+      for (int l = 1; l < Kernel.LANES; l++) {
+        s += lanes[o + l];
       }
+      part[q] = s;
     }
   }
 

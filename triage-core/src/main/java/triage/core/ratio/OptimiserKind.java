@@ -12,11 +12,19 @@ package triage.core.ratio;
  *   <li>{@link #ADAM}: plain Adam ("Adam: a method for stochastic optimization", ICLR 2015)
  *       with β1 = 0.9, β2 = 0.999, ε = 1e−8,
  *       full batch, a fixed number of epochs, parameters clipped after every step.</li>
+ *   <li>{@link #PROFILED_LBFGS}: the same projected L-BFGS over the hidden layers' parameters only, the output
+ *       layer's weights and bias set at every evaluation to their exact minimiser (the extended loss is convex in
+ *       them); runs to the same {@link StoppingRule}.</li>
  * </ul>
  */
 public enum OptimiserKind {
   /** Bounded quasi-Newton method respecting the clip box. */
   PROJECTED_LBFGS,
   /** Adam for a fixed epoch count, for comparison. */
-  ADAM
+  ADAM,
+  /**
+   * Projected L-BFGS over the hidden layers with the output layer profiled out exactly at every evaluation (see
+   * {@link ProfiledObjective}); for the extended loss with at least one hidden layer only.
+   */
+  PROFILED_LBFGS
 }

@@ -52,11 +52,16 @@ public final class RatioTrainer {
         IterationHook hook = listener == TrainingListener.NONE ? IterationHook.NONE
             : (it, loss, pg, x) -> listener.onIteration(startIndex, it, loss, pg, x.clone());
         var recorder = new TrainingLog.Recorder(settings.logCapacity());
-        OptimiserOutcome out = settings.optimiser() == OptimiserKind.ADAM
-            ? Adam.minimise(training, theta0, settings.clip(), settings.adamLearningRate(),
-                settings.adamEpochs(), settings.stoppingRule(), hook, recorder)
-            : ProjectedLbfgs.minimise(training, theta0, settings.clip(),
-                settings.lbfgsMemory(), settings.stoppingRule(), hook, recorder);
+        OptimiserOutcome out;
+        if (settings.optimiser() == OptimiserKind.ADAM) {
+          out = Adam.minimise(training, theta0, settings.clip(), settings.adamLearningRate(),
+              settings.adamEpochs(), settings.stoppingRule(), hook, recorder);
+        } else if (settings.optimiser() == OptimiserKind.PROFILED_LBFGS) {
+          out = profiledLbfgs(training, theta0, settings, hook, recorder);
+        } else {
+          out = ProjectedLbfgs.minimise(training, theta0, settings.clip(),
+              settings.lbfgsMemory(), settings.stoppingRule(), hook, recorder);
+        }
         long evaluations = out.evaluations();
         double t;
         if (extended == null) {
@@ -85,6 +90,26 @@ public final class RatioTrainer {
           problem.outputOffset(), data.featureNames(), summary);
       return new FitResult(model);
     }
+  }
+
+  /**
+   * Projected L-BFGS on the profiled loss. The outcome carries the full parameters (u, a*(u)) of the last accepted
+   * point: projected L-BFGS accepts only the point it evaluated last and reports it to the hook, so the hook keeps a
+   * copy, and the outcome's loss is that evaluation's, bit for bit (a clip-tuning cap reads the same t as a fit
+   * stopped there).
+   */
+  private static OptimiserOutcome profiledLbfgs(Objective training, double[] theta0, FitSettings settings,
+      IterationHook hook, TrainingLog.Recorder recorder) {
+    ProfiledObjective profiled = new ProfiledObjective(training, settings.clip(), theta0);
+    double[][] accepted = new double[1][];
+    IterationHook fullHook = (it, loss, pg, u) -> {
+      accepted[0] = profiled.lastFull();
+      hook.after(it, loss, pg, accepted[0]);
+    };
+    OptimiserOutcome o = ProjectedLbfgs.minimise(profiled, profiled.reduce(theta0), settings.clip(),
+        settings.lbfgsMemory(), settings.stoppingRule(), fullHook, recorder);
+    return new OptimiserOutcome(accepted[0], o.loss(), o.iterations(), o.evaluations(), o.reason(), o.converged(),
+        o.projectedGradientNorm(), o.log());
   }
 
   /** Glorot–Bengio uniform initialisation, clipped (see class comment). */

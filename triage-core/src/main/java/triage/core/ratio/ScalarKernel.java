@@ -26,15 +26,90 @@ final class ScalarKernel implements Kernel {
   @Override
   public void accumulate(Batch b, double[] th, int start, int end, Batch.Workspace ws) {
     for (int ts = start; ts < end; ts += TILE) {
-      tile(b, th, ts, ws);
+      tile(b, th, ts, ws, null);
     }
   }
 
-  private static void tile(Batch b, double[] th, int ts, Batch.Workspace ws) {
+  @Override
+  public void forwardTile(Batch b, double[] th, int ts, Batch.Workspace ws) {
+    forward(b, th, ts, ws);
+  }
+
+  @Override
+  public void accumulateFrom(Batch b, double[] th, double[][] acts, int start, int end, Batch.Workspace ws) {
+    for (int ts = start; ts < end; ts += TILE) {
+      tile(b, th, ts, ws, acts);
+    }
+  }
+
+  @Override
+  public void outputSums(Batch b, double[] h, double[] a, int start, int end, boolean derivatives,
+      Batch.Workspace ws) {
+    final int m = a.length - 1;
+    final int n = b.n;
+    final double[] f = ws.f;
+    final double[] u = ws.tmp;
+    final double[] t = ws.tmp2;
+    final double[] r = ws.dOut;
+    final double[] lanes = ws.outputLanes;
+    final double[] ca = b.coefA;
+    final double[] cb = b.coefB;
+    final double offset = b.offset;
+    final int hess = 2 + m + 1;
+    for (int ts = start; ts < end; ts += TILE) {
+      double bias = a[m];
+      for (int e = 0; e < TILE; e++) {
+        f[e] = bias;
+      }
+      for (int j = 0; j < m; j++) {
+        double w = a[j];
+        int hb = j * n + ts;
+        for (int e = 0; e < TILE; e++) {
+          f[e] = Math.fma(w, h[hb + e], f[e]);
+        }
+      }
+      for (int e = 0; e < TILE; e++) {
+        f[e] = f[e] + offset;
+        u[e] = FastExp.exp(f[e]);
+      }
+      for (int e = 0; e < TILE; e++) {
+        double ai = ca[ts + e];
+        double bi = cb[ts + e];
+        double ue = u[e];
+        double w = ai * ue;
+        t[e] = ai * (ue - 1.0) - bi * f[e];
+        r[e] = w - bi;
+        u[e] = w + bi;
+        f[e] = w;
+      }
+      sumAt(t, 0, lanes, 0);
+      sumAt(u, 0, lanes, LANES);
+      if (!derivatives) {
+        continue;
+      }
+      for (int j = 0; j < m; j++) {
+        dot(r, 0, h, j * n + ts, lanes, (2 + j) * LANES);
+      }
+      sumAt(r, 0, lanes, (2 + m) * LANES);
+      for (int j = 0; j < m; j++) {
+        int hb = j * n + ts;
+        for (int e = 0; e < TILE; e++) {
+          t[e] = f[e] * h[hb + e];
+        }
+        for (int k = 0; k <= j; k++) {
+          dot(t, 0, h, k * n + ts, lanes, (hess + j * (j + 1) / 2 + k) * LANES);
+        }
+        sumAt(t, 0, lanes, (hess + m * (m + 1) / 2 + j) * LANES);
+      }
+      sumAt(f, 0, lanes, (hess + m * (m + 1) / 2 + m) * LANES);
+    }
+  }
+
+  /** Forward pass through the hidden layers of one tile, into {@code ws.act}. */
+  private static void forward(Batch b, double[] th, int ts, Batch.Workspace ws) {
     final int hidden = b.width.length - 2;
     final int n = b.n;
     final boolean sigmoid = b.arch.activation() == Activation.SIGMOID;
-    // forward through the hidden layers
     for (int l = 1; l <= hidden; l++) {
       int nin = b.width[l - 1];
       int nout = b.width[l];
@@ -66,6 +141,17 @@ final class ScalarKernel implements Kernel {
           }
         }
       }
+    }
+  }
+
+  private static void tile(Batch b, double[] th, int ts, Batch.Workspace ws, double[][] acts) {
+    final int hidden = b.width.length - 2;
+    final int n = b.n;
+    final boolean sigmoid = b.arch.activation() == Activation.SIGMOID;
+    if (acts == null) {
+      forward(b, th, ts, ws);
+    } else {
+      Kernel.loadTile(b, acts, ts, ws);
     }
     // output layer
     final int lo = hidden + 1;

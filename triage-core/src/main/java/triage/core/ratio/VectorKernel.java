@@ -108,15 +108,83 @@ final class VectorKernel implements Kernel {
   @Override
   public void accumulate(Batch b, double[] th, int start, int end, Batch.Workspace ws) {
     for (int ts = start; ts < end; ts += TILE) {
-      tile(b, th, ts, ws);
+      tile(b, th, ts, ws, null);
     }
   }
 
-  private static void tile(Batch b, double[] th, int ts, Batch.Workspace ws) {
+  @Override
+  public void forwardTile(Batch b, double[] th, int ts, Batch.Workspace ws) {
+    forward(b, th, ts, ws);
+  }
+
+  @Override
+  public void accumulateFrom(Batch b, double[] th, double[][] acts, int start, int end, Batch.Workspace ws) {
+    for (int ts = start; ts < end; ts += TILE) {
+      tile(b, th, ts, ws, acts);
+    }
+  }
+
+  @Override
+  public void outputSums(Batch b, double[] h, double[] a, int start, int end, boolean derivatives,
+      Batch.Workspace ws) {
+    final int m = a.length - 1;
+    final int n = b.n;
+    final double[] f = ws.f;
+    final double[] u = ws.tmp;
+    final double[] t = ws.tmp2;
+    final double[] r = ws.dOut;
+    final double[] lanes = ws.outputLanes;
+    final double[] ca = b.coefA;
+    final double[] cb = b.coefB;
+    final double offset = b.offset;
+    final int hess = 2 + m + 1;
+    for (int ts = start; ts < end; ts += TILE) {
+      for (int e = 0; e < TILE; e += V) {
+        DoubleVector fv = DoubleVector.broadcast(S, a[m]);
+        for (int j = 0; j < m; j++) {
+          fv = DoubleVector.broadcast(S, a[j]).fma(DoubleVector.fromArray(S, h, j * n + ts + e), fv);
+        }
+        fv.add(offset).intoArray(f, e);
+      }
+      transform(EXP, f, 0, u, 0, TILE);
+      for (int e = 0; e < TILE; e += V) {
+        DoubleVector av = DoubleVector.fromArray(S, ca, ts + e);
+        DoubleVector bv = DoubleVector.fromArray(S, cb, ts + e);
+        DoubleVector ue = DoubleVector.fromArray(S, u, e);
+        DoubleVector w = av.mul(ue);
+        av.mul(ue.sub(1.0)).sub(bv.mul(DoubleVector.fromArray(S, f, e))).intoArray(t, e);
+        w.sub(bv).intoArray(r, e);
+        w.add(bv).intoArray(u, e);
+        w.intoArray(f, e);
+      }
+      sum(t, 0, lanes, 0);
+      sum(u, 0, lanes, LANES);
+      if (!derivatives) {
+        continue;
+      }
+      for (int j = 0; j < m; j++) {
+        dot(r, 0, h, j * n + ts, lanes, (2 + j) * LANES);
+      }
+      sum(r, 0, lanes, (2 + m) * LANES);
+      for (int j = 0; j < m; j++) {
+        int hb = j * n + ts;
+        for (int e = 0; e < TILE; e += V) {
+          DoubleVector.fromArray(S, f, e).mul(DoubleVector.fromArray(S, h, hb + e)).intoArray(t, e);
+        }
+        for (int k = 0; k <= j; k++) {
+          dot(t, 0, h, k * n + ts, lanes, (hess + j * (j + 1) / 2 + k) * LANES);
+        }
+        sum(t, 0, lanes, (hess + m * (m + 1) / 2 + j) * LANES);
+      }
+      sum(f, 0, lanes, (hess + m * (m + 1) / 2 + m) * LANES);
+    }
+  }
+
+  /** Forward pass through the hidden layers of one tile, into {@code ws.act}. */
+  private static void forward(Batch b, double[] th, int ts, Batch.Workspace ws) {
     final int hidden = b.width.length - 2;
     final int n = b.n;
     final boolean sigmoid = b.arch.activation() == Activation.SIGMOID;
-    final DoubleVector one = DoubleVector.broadcast(S, 1.0);
     for (int l = 1; l <= hidden; l++) {
       int nin = b.width[l - 1];
       int nout = b.width[l];
@@ -139,6 +207,18 @@ final class VectorKernel implements Kernel {
         }
         transform(sigmoid ? SIGMOID : TANH, out, ob, out, ob, TILE);
       }
+    }
+  }
+
+  private static void tile(Batch b, double[] th, int ts, Batch.Workspace ws, double[][] acts) {
+    final int hidden = b.width.length - 2;
+    final int n = b.n;
+    final boolean sigmoid = b.arch.activation() == Activation.SIGMOID;
+    final DoubleVector one = DoubleVector.broadcast(S, 1.0);
+    if (acts == null) {
+      forward(b, th, ts, ws);
+    } else {
+      Kernel.loadTile(b, acts, ts, ws);
     }
     final int lo = hidden + 1;
     final int nlast = b.width[hidden];

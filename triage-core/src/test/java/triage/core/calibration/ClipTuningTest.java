@@ -39,15 +39,17 @@ class ClipTuningTest {
 
   /**
    * Exact (the optimisers' state does not depend on the cap): t read at each cap of one long fit equals, bit for
-   * bit, the t of a fit capped there; for L-BFGS with one and with three random starts, and for Adam.
+   * bit, the t of a fit capped there; for both L-BFGS variants with one and with three random starts, and for Adam.
    */
   @ParameterizedTest
-  @ValueSource(strings = {"lbfgs-1", "lbfgs-3", "adam-1"})
+  @ValueSource(strings = {"lbfgs-1", "lbfgs-3", "profiled-1", "profiled-3", "adam-1"})
   void capsFromOneFitEqualSeparatelyCappedFits(String mode) {
     FitSettings s = FitSettings.defaults().withHiddenWidths(List.of(3)).withClip(2).withThreads(1).withSeed(9)
         .withRestarts(Integer.parseInt(mode.substring(mode.length() - 1)));
     if (mode.startsWith("adam")) {
       s = s.withOptimiser(OptimiserKind.ADAM).withAdamLearningRate(0.05);
+    } else if (mode.startsWith("profiled")) {
+      s = s.withOptimiser(OptimiserKind.PROFILED_LBFGS);
     }
     int[] caps = {1, 4, 20, 80, 400};
     ClipTuning.TuningToy toy = ClipTuning.fitAtCaps(data(), s, caps, 0, 100, System.nanoTime());

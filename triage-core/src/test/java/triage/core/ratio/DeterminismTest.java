@@ -4,6 +4,8 @@ import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.EnumSource;
 
 /**
  * (e) Same seed and settings give the same t (required: 1e−9 relative; asserted: bit-identical,
@@ -20,12 +22,13 @@ class DeterminismTest {
         .withStoppingRule(StoppingRule.defaults().withMaxIterations(120));
   }
 
-  @Test
-  void identicalAcrossRunsThreadCountsAndKernels() {
-    FitResult reference = RatioTrainer.fit(DATA, settings(1));
+  @ParameterizedTest
+  @EnumSource(value = OptimiserKind.class, names = {"PROJECTED_LBFGS", "PROFILED_LBFGS"})
+  void identicalAcrossRunsThreadCountsAndKernels(OptimiserKind optimiser) {
+    FitResult reference = RatioTrainer.fit(DATA, settings(1).withOptimiser(optimiser));
     for (int threads : new int[] {1, 2, 3}) {
       for (KernelChoice kernel : new KernelChoice[] {KernelChoice.AUTO, KernelChoice.SCALAR}) {
-        FitResult r = RatioTrainer.fit(DATA, settings(threads).withKernel(kernel));
+        FitResult r = RatioTrainer.fit(DATA, settings(threads).withKernel(kernel).withOptimiser(optimiser));
         String what = "threads=" + threads + " kernel=" + kernel;
         assertEquals(Double.doubleToRawLongBits(reference.testStatistic()),
             Double.doubleToRawLongBits(r.testStatistic()), what);

@@ -27,6 +27,8 @@ class GaussianShiftTest {
   private static FitResult extended;
   /** Cross-entropy fit. */
   private static FitResult crossEntropy;
+  /** Extended-likelihood fit by the other L-BFGS variant (output layer profiled out, or not). */
+  private static FitResult other;
 
   @BeforeAll
   static void fit() {
@@ -35,6 +37,8 @@ class GaussianShiftTest {
         .withStoppingRule(StoppingRule.defaults().withMaxIterations(1500));
     extended = RatioTrainer.fit(data, s);
     crossEntropy = RatioTrainer.fit(data, s.withLoss(LossKind.BINARY_CROSS_ENTROPY));
+    other = RatioTrainer.fit(data, s.withOptimiser(s.optimiser() == OptimiserKind.PROFILED_LBFGS
+        ? OptimiserKind.PROJECTED_LBFGS : OptimiserKind.PROFILED_LBFGS));
   }
 
   private static double trueLogRatio(double x0, double x1) {
@@ -95,6 +99,20 @@ class GaussianShiftTest {
     assertEquals(tNp, extended.testStatistic(), 0.15 * tNp);
     // t is −2 × the final loss for the extended likelihood (definition)
     assertEquals(-2 * extended.finalLoss(), extended.testStatistic(), 0.0);
+  }
+
+  @Test
+  void bothLbfgsVariantsApproachTheAnalyticLogRatio() {
+    double[] f = other.model().scoreAll(data.reference(), data.referenceCount(), 2);
+    double[] fe = extended.model().scoreAll(data.reference(), data.referenceCount(), 2);
+    double rms = bulkRms(f, truth());
+    double tNp = neymanPearsonT();
+    System.out.printf("%s: RMS %.4f, t %.3f (the other %.3f), t_NP %.3f, evaluations %d against %d%n",
+        other.summary().settings().optimiser(), rms, other.testStatistic(), extended.testStatistic(), tNp,
+        other.summary().lossEvaluations(), extended.summary().lossEvaluations());
+    assertTrue(rms <= 0.15, "bulk RMS " + rms);
+    assertTrue(bulkRms(f, fe) <= 0.15, "RMS between the two fits " + bulkRms(f, fe));
+    assertEquals(tNp, other.testStatistic(), 0.15 * tNp);
   }
 
   @Test

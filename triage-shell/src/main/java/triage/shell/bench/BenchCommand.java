@@ -344,10 +344,21 @@ public final class BenchCommand implements Runnable {
         description = "Weight clip of the toy fits (default: ${DEFAULT-VALUE}, as `fit`).")
     double clip;
 
+    /** Optimiser of the toy fits. */
+    @Option(names = "--optimiser", defaultValue = "lbfgs", paramLabel = "lbfgs|profiled",
+        description = "Optimiser of the toy fits, as `fit --optimiser` (default: ${DEFAULT-VALUE}, as `fit`).")
+    String optimiser;
+
     @Override
     public Integer call() throws IOException {
+      triage.core.ratio.OptimiserKind kind = switch (optimiser) {
+        case "profiled" -> triage.core.ratio.OptimiserKind.PROFILED_LBFGS;
+        case "lbfgs" -> triage.core.ratio.OptimiserKind.PROJECTED_LBFGS;
+        default -> throw new CommandLine.ParameterException(new CommandLine(this),
+            "--optimiser must be profiled or lbfgs, not '" + optimiser + "'");
+      };
       triage.core.calibration.CalibrationBenchmark.run(System.out, sizes.threads, sizes.reference, sizes.observed,
-          features, toys, clip);
+          features, toys, clip, kind);
       return ExitCodes.OK;
     }
   }
