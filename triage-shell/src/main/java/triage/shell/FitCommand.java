@@ -187,6 +187,11 @@ public final class FitCommand implements Callable<Integer> {
         // e.g. reference weights (negative ones allowed at ingest) that do not sum to a positive yield
         throw new InputException(index, "cannot fit on this index: " + e.getMessage());
       }
+      if (settings.optimiser() == OptimiserKind.PROFILED_LBFGS && m.sample(reference).negativeWeights() > 0) {
+        throw new InputException(index, "the profiled optimiser needs a reference without negative weights (only "
+            + "then is the output layer's problem convex); this reference has " + m.sample(reference).negativeWeights()
+            + ": use --optimiser lbfgs");
+      }
       o.note("fitting %s on %d observed and %d reference events (%s, clip %s, %s) ...", settings.hiddenWidths(),
           m.sample(observed).events(), m.sample(reference).events(), settings.activation(), settings.clip(),
           settings.optimiser());

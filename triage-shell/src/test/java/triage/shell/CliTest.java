@@ -224,6 +224,10 @@ class CliTest {
     assertEquals(0, nonPositive.code(), nonPositive.err());
     Run pair = run("hist", "--index", index.toString(), "--column", "x", "--pair", "followup");
     assertEquals(ExitCodes.USAGE, pair.code());
+    // The profiled optimiser's output-layer problem is convex only without negative weights: refused before fitting.
+    Run profiled = run("fit", "--index", index.toString(), "--layers", "2", "--optimiser", "profiled");
+    assertEquals(ExitCodes.INPUT, profiled.code(), profiled.err());
+    assertTrue(profiled.err().contains("negative weights"), profiled.err());
   }
 
   /** A second sample with a role already taken is kept, reachable by name, and ingest says which one commands use. */

@@ -85,6 +85,12 @@ final class ProfiledObjective implements DifferentiableFunction {
     if (batch.loss != LossKind.EXTENDED_LIKELIHOOD) {
       throw new IllegalArgumentException("profiling the output layer is for the extended loss");
     }
+    for (double w : batch.coefA) {
+      if (w < 0) {
+        throw new IllegalArgumentException("profiling the output layer needs reference weights >= 0 (the output "
+            + "layer's problem is convex only then)");
+      }
+    }
     this.clip = clip;
     int layers = arch.layerCount();
     this.m = arch.width(layers - 1);
