@@ -235,6 +235,12 @@ public final class CalibrateCommand implements Callable<Integer> {
     List<String> features = c.model().featureNames();
     double[] ref = FitCommand.featureMajor(c.store().columns(reference, features));
     double[] w = c.store().weights(reference);
+    if (c.settings().optimiser() == triage.core.ratio.OptimiserKind.PROFILED_LBFGS
+        && c.manifest().sample(reference).negativeWeights() > 0) {
+      throw new InputException(index, "model " + c.mm().version() + " was fitted with the profiled optimiser, which "
+          + "needs a reference without negative weights; this reference has "
+          + c.manifest().sample(reference).negativeWeights() + " (fit again with --optimiser lbfgs)");
+    }
     if (c.expected() > 0.5 * w.length) {
       throw new InputException(index, String.format(Locale.ROOT, "toys draw about %.0f events from a reference "
           + "of %d without replacement; the reference must be much larger (at least twice, better ten times) "

@@ -195,7 +195,13 @@ public final class FitCommand implements Callable<Integer> {
       o.note("fitting %s on %d observed and %d reference events (%s, clip %s, %s) ...", settings.hiddenWidths(),
           m.sample(observed).events(), m.sample(reference).events(), settings.activation(), settings.clip(),
           settings.optimiser());
-      FitResult fit = RatioTrainer.fit(data, settings);
+      FitResult fit;
+      try {
+        fit = RatioTrainer.fit(data, settings);
+      } catch (IllegalArgumentException e) {
+        // a combination of these settings and this index that the fit refuses (e.g. the profiled optimiser's memory)
+        throw new InputException(index, "cannot fit on this index: " + e.getMessage());
+      }
       RatioModel model = fit.model();
       String version = versionName != null ? versionName : nextVersion(m);
       double[] scores = new double[(int) m.totalEvents()];

@@ -108,6 +108,9 @@ public final class RatioTrainer {
     };
     OptimiserOutcome o = ProjectedLbfgs.minimise(profiled, profiled.reduce(theta0), settings.clip(),
         settings.lbfgsMemory(), settings.stoppingRule(), fullHook, recorder);
+    if (!java.util.Arrays.equals(profiled.reduce(accepted[0]), o.parameters())) {
+      throw new IllegalStateException("the profiled fit's last accepted point is not the one it returned");
+    }
     return new OptimiserOutcome(accepted[0], o.loss(), o.iterations(), o.evaluations(), o.reason(), o.converged(),
         o.projectedGradientNorm(), o.log());
   }
