@@ -90,6 +90,7 @@ public final class FitBenchmark {
         .withStoppingRule(StoppingRule.defaults().withMaxIterations(150));
     RatioTrainer.fit(data, s);
     RatioTrainer.fit(data, s.withKernel(KernelChoice.SCALAR));
+    RatioTrainer.fit(data, s.withOptimiser(OptimiserKind.PROFILED_LBFGS));
     RatioTrainer.fit(data, s.withOptimiser(OptimiserKind.ADAM).withAdamEpochs(150));
   }
 
