@@ -39,6 +39,18 @@ interface Kernel {
     }
   }
 
+  /** out[q] = the sum of slot q's eight lanes, lane 0 to 7 in order, for q &lt; {@code slots}. */
+  static void sumLanes(double[] lanes, double[] out, int slots) {
+    for (int q = 0; q < slots; q++) {
+      int o = q * LANES;
+      double s = lanes[o];
+      for (int l = 1; l < LANES; l++) {
+        s += lanes[o + l];
+      }
+      out[q] = s;
+    }
+  }
+
   /** Copies the kept activations of the tile at event {@code ts} into {@code ws.act} (the inverse of {@link #hidden}). */
   static void loadTile(Batch batch, double[][] acts, int ts, Batch.Workspace ws) {
     for (int l = 0; l < acts.length; l++) {

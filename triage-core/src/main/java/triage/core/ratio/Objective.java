@@ -191,15 +191,7 @@ final class Objective implements DifferentiableFunction, AutoCloseable {
     } else {
       kernel.accumulateFrom(batch, current, currentActs, start, end, ws);
     }
-    double[] part = partials[c];
-    for (int q = 0; q <= p; q++) {
-      int o = q * Kernel.LANES;
-      double s = lanes[o];
-      for (int l = 1; l < Kernel.LANES; l++) {
-        s += lanes[o + l];
-      }
-      part[q] = s;
-    }
+    Kernel.sumLanes(lanes, partials[c], p + 1);
   }
 
   @Override

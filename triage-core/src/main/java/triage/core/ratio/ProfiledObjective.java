@@ -78,8 +78,6 @@ final class ProfiledObjective implements DifferentiableFunction {
   private double[] passA;
   /** Whether the pass in progress adds gradient and Hessian. */
   private boolean passDerivatives;
-  /** Inner passes over the events so far. */
-  private long innerPasses;
 
   ProfiledObjective(Objective full, double clip, double[] start) {
     this.full = full;
@@ -157,11 +155,6 @@ final class ProfiledObjective implements DifferentiableFunction {
     return theta.clone();
   }
 
-  /** Inner passes over the events so far. */
-  long innerPasses() {
-    return innerPasses;
-  }
-
   @Override
   public double valueAndGradient(double[] u, double[] g) {
     for (int i = 0; i < outer.length; i++) {
@@ -219,7 +212,6 @@ final class ProfiledObjective implements DifferentiableFunction {
       }
       double step = 1.0;
       boolean accepted = false;
-      double scale = gradientScale;
       for (int t = 0; t < INNER_TRIALS; t++) {
         for (int j = 0; j < q; j++) {
           double v = Math.max(-clip, Math.min(clip, a[j] + step * dir[j]));
@@ -235,7 +227,6 @@ final class ProfiledObjective implements DifferentiableFunction {
         step *= 0.5;
       }
       if (!accepted) {
-        gradientScale = scale;
         break;
       }
       double[] swap = a;
@@ -396,7 +387,6 @@ final class ProfiledObjective implements DifferentiableFunction {
 
   /** L(u, a) over all events, and with {@code derivatives} its gradient and Hessian in a (chunk order). */
   private double pass(double[] a, boolean derivatives, double[] g, double[][] hess) {
-    innerPasses++;
     passA = a;
     passDerivatives = derivatives;
     full.forEachChunk(this::chunk);
@@ -441,15 +431,7 @@ final class ProfiledObjective implements DifferentiableFunction {
     java.util.Arrays.fill(lanes, 0.0);
     full.kernel().outputSums(batch, h, passA, start, end, passDerivatives, ws);
     double[] part = parts[c];
-    int slots = passDerivatives ? part.length : 2;
-    for (int q = 0; q < slots; q++) {
-      int o = q * Kernel.LANES;
-      double s = lanes[o];
-      for (int l = 1; l < Kernel.LANES; l++) {
-        s += lanes[o + l];
-      }
-      part[q] = s;
-    }
+    Kernel.sumLanes(lanes, part, passDerivatives ? part.length : 2);
   }
 
 }
