@@ -32,15 +32,16 @@ public record Manifest(String format, String indexId, String tool, String create
 
   /**
    * The index format this version writes: each event's binary form kept once, as binary doc values, and float
-   * points (checked exactly against the binary form) for double columns.
+   * points (checked exactly against the binary form) for double columns, in segments of the index's own codec
+   * (Lucene's files, with point trees sorted another way at flush; older versions cannot open them).
    */
-  public static final String FORMAT = "triage-index/2";
+  public static final String FORMAT = "triage-index/3";
 
   /**
    * The formats this version reads: 1 had double points and also kept the binary form as a stored field (no
-   * longer read).
+   * longer read); 2 is format 3 written with Lucene's default codec.
    */
-  public static final List<String> READABLE = List.of("triage-index/1", FORMAT);
+  public static final List<String> READABLE = List.of("triage-index/1", "triage-index/2", FORMAT);
 
   /** Reads and writes manifests; tolerant of fields added by later minor versions. */
   static final ObjectMapper MAPPER = new ObjectMapper()

@@ -91,7 +91,7 @@ class CliTest {
     Run info = run("info", "--index", index.toString(), "--json");
     assertEquals(0, info.code(), info.err());
     JsonNode m = JSON.readTree(info.out()).get("manifest");
-    assertEquals("triage-index/2", m.get("format").asText());
+    assertEquals("triage-index/3", m.get("format").asText());
     assertEquals(3, m.get("samples").get(0).get("events").asLong());
     assertEquals(2, m.get("samples").get(1).get("events").asLong());
 

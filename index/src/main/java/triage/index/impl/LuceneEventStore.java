@@ -905,6 +905,7 @@ public final class LuceneEventStore implements EventStore {
     IndexWriterConfig config = new IndexWriterConfig();
     config.setOpenMode(IndexWriterConfig.OpenMode.APPEND);
     config.setCommitOnClose(false);
+    config.setCodec(new EventCodec());
     Manifest updated;
     // Everything below holds the index's write lock, and starts from the latest commit's manifest: another process
     // may have added a model since this store was opened, and its model must not be lost.

@@ -93,6 +93,7 @@ public final class LuceneIngest {
       // events: about 15% faster). Queries run segment by segment in parallel, so tens of segments serve them well.
       config.setUseCompoundFile(false);
       config.setMergePolicy(NoMergePolicy.INSTANCE);
+      config.setCodec(new EventCodec());
       try (IndexWriter writer = new IndexWriter(directory, config);
           Rejects rejects = new Rejects(rejectsFile, options.read().badRows() == BadRowPolicy.SKIP)) {
         Writing writing = new Writing(spec, writer, options.threads());
