@@ -107,15 +107,22 @@ public final class BenchCommand implements Runnable {
         System.gc();
         try (HeapSampler heap = new HeapSampler()) {
           double cpu0 = HeapSampler.processCpuSeconds();
+          double jit0 = compilationSeconds();
           IngestReport r = Ingest.run(s, folder.resolve("index"), Ingest.Options.defaults().withReplace(true)
               .withThreads(threads).withRamBufferMb(ramBufferMb), line -> { });
           double cpu = HeapSampler.processCpuSeconds() - cpu0;
+          double jit = compilationSeconds() - jit0;
           o.say("ingest: %d events in %.2f s = %.0f events/s (%d indexing threads, %d cores, max heap %d MiB)",
               r.rowsIndexed(), r.seconds(), r.rowsIndexed() / r.seconds(), threads,
               Runtime.getRuntime().availableProcessors(), Runtime.getRuntime().maxMemory() >> 20);
           o.say("process CPU time during ingest: %.2f s = %.2f µs per event (%.0f events per CPU second; "
               + "steadier than wall time on a shared machine)", cpu, cpu * 1e6 / r.rowsIndexed(),
               r.rowsIndexed() / cpu);
+          if (jit0 >= 0) {
+            // the JVM's compilers run beside the ingest and their time is part of the CPU time above; it weighs
+            // most on small inputs, before the code is compiled
+            o.say("JIT compilation during ingest: %.2f s (the JVM's own figure, included in the CPU time above)", jit);
+          }
           o.say("peak heap in use during ingest: %.0f MiB", heap.peakMiB());
         }
       } finally {
@@ -123,6 +130,12 @@ public final class BenchCommand implements Runnable {
       }
       return ExitCodes.OK;
     }
+  }
+
+  /** Seconds the JVM's JIT compilers have spent so far, or −1 where the JVM does not say. */
+  static double compilationSeconds() {
+    java.lang.management.CompilationMXBean c = java.lang.management.ManagementFactory.getCompilationMXBean();
+    return c != null && c.isCompilationTimeMonitoringSupported() ? c.getTotalCompilationTime() / 1e3 : -1;
   }
 
   /** {@code triage bench select}. */
