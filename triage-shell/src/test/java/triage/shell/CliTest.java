@@ -793,4 +793,20 @@ class CliTest {
     assertTrue(Files.exists(dir.resolve("demo/index/manifest.json")));
     assertTrue(Files.exists(dir.resolve("demo/samples/truth.csv")));
   }
+
+  @Test
+  void benchIngestPrintsColdAndWarmRuns() {
+    Run r = run("bench", "ingest", "--events", "3000", "--features", "3", "--runs", "2", "--work",
+        dir.resolve("bench").toString());
+    assertEquals(0, r.code(), r.err());
+    String all = r.out() + r.err();
+    assertTrue(all.contains("run 1 of 2 (cold JVM)"), all);
+    assertTrue(all.contains("run 2 of 2 (warm)"), all);
+    assertTrue(all.contains("ingest: 3000 events in"), all);
+    assertTrue(all.contains("warm runs (2-2): median"), all);
+
+    Run none = run("bench", "ingest", "--events", "3000", "--runs", "0");
+    assertEquals(ExitCodes.USAGE, none.code());
+    assertTrue(none.err().contains("--runs must be at least 1"), none.err());
+  }
 }

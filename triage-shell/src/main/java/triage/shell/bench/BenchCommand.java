@@ -93,9 +93,18 @@ public final class BenchCommand implements Runnable {
         description = "Lucene's in-memory buffer before a segment is written (default: ${DEFAULT-VALUE}).")
     double ramBufferMb;
 
+    /** Runs. */
+    @Option(names = "--runs", defaultValue = "3", paramLabel = "N",
+        description = "Ingests of the same files in one JVM (default: ${DEFAULT-VALUE}): the first is cold, as one "
+            + "`triage ingest` runs; the later ones are warm, their median printed too.")
+    int runs;
+
     @Override
     public Integer call() throws Exception {
       Output o = new Output(spec, false);
+      if (runs < 1) {
+        throw new CommandLine.ParameterException(spec.commandLine(), "--runs must be at least 1, got " + runs);
+      }
       Path folder = folder();
       try {
         long n = eventCount();
@@ -104,26 +113,44 @@ public final class BenchCommand implements Runnable {
         SampleSpec s = BenchData.write(folder.resolve("data"), n, features, seed);
         o.say("  generated in %.1f s (%.0f MB of CSV)", (System.nanoTime() - t0) / 1e9,
             (Files.size(folder.resolve("data/reference.csv")) + Files.size(folder.resolve("data/observed.csv"))) / 1e6);
-        System.gc();
-        try (HeapSampler heap = new HeapSampler()) {
-          double cpu0 = HeapSampler.processCpuSeconds();
-          double jit0 = compilationSeconds();
-          IngestReport r = Ingest.run(s, folder.resolve("index"), Ingest.Options.defaults().withReplace(true)
-              .withThreads(threads).withRamBufferMb(ramBufferMb), line -> { });
-          double cpu = HeapSampler.processCpuSeconds() - cpu0;
-          double jit = compilationSeconds() - jit0;
-          o.say("ingest: %d events in %.2f s = %.0f events/s (%d indexing threads, %d cores, max heap %d MiB)",
-              r.rowsIndexed(), r.seconds(), r.rowsIndexed() / r.seconds(), threads,
-              Runtime.getRuntime().availableProcessors(), Runtime.getRuntime().maxMemory() >> 20);
-          o.say("process CPU time during ingest: %.2f s = %.2f µs per event (%.0f events per CPU second; "
-              + "steadier than wall time on a shared machine)", cpu, cpu * 1e6 / r.rowsIndexed(),
-              r.rowsIndexed() / cpu);
-          if (jit0 >= 0) {
-            // the JVM's compilers run beside the ingest and their time is part of the CPU time above; it weighs
-            // most on small inputs, before the code is compiled
-            o.say("JIT compilation during ingest: %.2f s (the JVM's own figure, included in the CPU time above)", jit);
+        // the first run is cold, as one `triage ingest` in a fresh JVM; later runs see compiled code, as a benchmark
+        // harness measures after its warm-up iterations; both are printed
+        double[] warmRates = new double[Math.max(0, runs - 1)];
+        for (int run = 1; run <= runs; run++) {
+          System.gc();
+          try (HeapSampler heap = new HeapSampler()) {
+            double cpu0 = HeapSampler.processCpuSeconds();
+            double jit0 = compilationSeconds();
+            IngestReport r = Ingest.run(s, folder.resolve("index"), Ingest.Options.defaults().withReplace(true)
+                .withThreads(threads).withRamBufferMb(ramBufferMb), line -> { });
+            double cpu = HeapSampler.processCpuSeconds() - cpu0;
+            double jit = compilationSeconds() - jit0;
+            double rate = r.rowsIndexed() / r.seconds();
+            if (run > 1) {
+              warmRates[run - 2] = rate;
+            }
+            o.say("run %d of %d (%s):", run, runs, run == 1 ? "cold JVM" : "warm");
+            o.say("  ingest: %d events in %.2f s = %.0f events/s (%d indexing threads, %d cores, max heap %d MiB)",
+                r.rowsIndexed(), r.seconds(), rate, threads,
+                Runtime.getRuntime().availableProcessors(), Runtime.getRuntime().maxMemory() >> 20);
+            o.say("  process CPU time during ingest: %.2f s = %.2f µs per event (%.0f events per CPU second; "
+                + "steadier than wall time on a shared machine)", cpu, cpu * 1e6 / r.rowsIndexed(),
+                r.rowsIndexed() / cpu);
+            if (jit0 >= 0) {
+              // the JVM's compilers run beside the ingest and their time is part of the CPU time above; it weighs
+              // most on small inputs, before the code is compiled
+              o.say("  JIT compilation during ingest: %.2f s (the JVM's own figure, included in the CPU time above)",
+                  jit);
+            }
+            o.say("  peak heap in use during ingest: %.0f MiB", heap.peakMiB());
           }
-          o.say("peak heap in use during ingest: %.0f MiB", heap.peakMiB());
+        }
+        if (warmRates.length > 0) {
+          Arrays.sort(warmRates);
+          int k = warmRates.length;
+          double median = k % 2 == 1 ? warmRates[k / 2] : (warmRates[k / 2 - 1] + warmRates[k / 2]) / 2;
+          o.say("warm runs (2-%d): median %.0f events/s (min %.0f, max %.0f); the cold run is what a single "
+              + "`triage ingest` of this size sees", runs, median, warmRates[0], warmRates[k - 1]);
         }
       } finally {
         cleanUp(folder);
