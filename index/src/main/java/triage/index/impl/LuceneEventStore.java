@@ -26,6 +26,8 @@ import java.util.Optional;
 import java.util.Set;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.stream.IntStream;
+import java.util.regex.Matcher;
+import java.util.regex.Pattern;
 import org.apache.lucene.document.DoublePoint;
 import org.apache.lucene.document.FloatPoint;
 import org.apache.lucene.document.LongPoint;
@@ -39,6 +41,7 @@ import org.apache.lucene.index.IndexNotFoundException;
 import org.apache.lucene.index.IndexWriter;
 import org.apache.lucene.index.IndexWriterConfig;
 import org.apache.lucene.index.LeafReaderContext;
+import org.apache.lucene.index.NoMergePolicy;
 import org.apache.lucene.index.ReaderUtil;
 import org.apache.lucene.index.SegmentInfos;
 import org.apache.lucene.search.BooleanClause;
@@ -177,10 +180,35 @@ public final class LuceneEventStore implements EventStore {
     } catch (AccessDeniedException e) {
       closeQuietly(reader, directory);
       throw new IndexException(dir, "cannot be read: permission denied", e);
+    } catch (IllegalArgumentException e) {
+      closeQuietly(reader, directory);
+      throw unknownCodecOr(dir, e, "open it with the version of triage that wrote it");
     } catch (IOException e) {
       closeQuietly(reader, directory);
       throw new IndexException(dir, "cannot be opened: " + e, e);
     }
+  }
+
+  /** Lucene's message when a segment names a codec that no jar on the class path registers. */
+  private static final Pattern UNKNOWN_CODEC =
+      Pattern.compile("SPI class of type org\\.apache\\.lucene\\.codecs\\.Codec with name '([^']*)' does not exist");
+
+  /**
+   * A clear message for a commit whose segments name a codec this installation lacks (an index written by a later
+   * version, or a class path without {@code META-INF/services/org.apache.lucene.codecs.Codec}); any other failure
+   * is returned as it is (a bug).
+   */
+  static RuntimeException unknownCodecOr(Path dir, IllegalArgumentException e, String advice) {
+    for (Throwable t = e; t != null; t = t.getCause()) {
+      Matcher m = UNKNOWN_CODEC.matcher(String.valueOf(t.getMessage()));
+      if (m.find()) {
+        return new IndexException(dir, "was written with the index codec '" + m.group(1) + "', which this "
+            + "installation of triage cannot read (it has " + org.apache.lucene.codecs.Codec.availableCodecs()
+            + "; a later version's codec needs that version, " + EventCodec.NAME + " needs the index jar's "
+            + "META-INF/services entry); " + advice, e);
+      }
+    }
+    return e;
   }
 
   private static void closeQuietly(AutoCloseable... resources) {
@@ -905,7 +933,10 @@ public final class LuceneEventStore implements EventStore {
     IndexWriterConfig config = new IndexWriterConfig();
     config.setOpenMode(IndexWriterConfig.OpenMode.APPEND);
     config.setCommitOnClose(false);
-    config.setCodec(new EventCodec());
+    // This commit adds no document: it must not merge either. With Lucene's default policy a commit merges small
+    // segments (up to 500 ms), which would rewrite a format-2 index's segments in this version's codec while its
+    // manifest still says format 2, so the version that wrote it could no longer open it.
+    config.setMergePolicy(NoMergePolicy.INSTANCE);
     Manifest updated;
     // Everything below holds the index's write lock, and starts from the latest commit's manifest: another process
     // may have added a model since this store was opened, and its model must not be lost.
@@ -938,6 +969,8 @@ public final class LuceneEventStore implements EventStore {
       writer.commit();
     } catch (LockObtainFailedException e) {
       throw new IndexException(dir, "is in use by another ingest or fit (its write lock is held)", e);
+    } catch (IllegalArgumentException e) {
+      throw unknownCodecOr(dir, e, "add models with the version of triage that wrote it");
     }
     writeManifestCopy(dir, updated);
     manifest = updated;

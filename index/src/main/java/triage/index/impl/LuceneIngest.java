@@ -153,6 +153,9 @@ public final class LuceneIngest {
       }
     } catch (LockObtainFailedException e) {
       throw new IndexException(dir, "is in use by another ingest or fit (its write lock is held)", e);
+    } catch (IllegalArgumentException e) {
+      // --replace: the writer reads the commit it replaces
+      throw LuceneEventStore.unknownCodecOr(dir, e, "remove the folder to ingest anew");
     }
   }
 
