@@ -129,4 +129,45 @@ class OpenErrorsTest {
     String message = openFails(index);
     assertTrue(message.contains("damaged") || message.contains("no index here"), message);
   }
+
+  /**
+   * Garbled bytes in the middle of any data file (doc values, points, stored fields, postings, their metadata) are
+   * found on open by the files' checksums and refused as damage, before a selection could count wrong or crash; each
+   * kind of file in turn, on a fresh copy of the index. Before the checksums were read on open, bytes of 0xFF in
+   * the doc values' data gave a selection 154 of 200 reference events with exit 0.
+   */
+  @Test
+  void garbledDataFilesAreFoundOnOpen() throws IOException {
+    Path index = dir.resolve("good");
+    TestSamples.write(dir.resolve("data"), 500, 50, 2, false);
+    Ingest.run(TestSamples.spec(dir.resolve("data")), index, Ingest.Options.defaults(), null);
+    List<String> names;
+    try (Stream<Path> files = Files.list(index)) {
+      names = files.map(p -> p.getFileName().toString())
+          .filter(n -> n.startsWith("_") && !n.endsWith(".si") && !n.endsWith(".fnm")).sorted().toList();
+    }
+    assertTrue(names.stream().anyMatch(n -> n.endsWith(".dvd")), names.toString());
+    assertTrue(names.stream().anyMatch(n -> n.endsWith(".kdd")), names.toString());
+    for (String name : names) {
+      Path copy = dir.resolve("copy-" + name);
+      try (Stream<Path> files = Files.list(index)) {
+        Files.createDirectories(copy);
+        for (Path f : files.filter(Files::isRegularFile).toList()) {
+          Files.copy(f, copy.resolve(f.getFileName()));
+        }
+      }
+      try (RandomAccessFile raf = new RandomAccessFile(copy.resolve(name).toFile(), "rw")) {
+        long at = raf.length() / 2;
+        raf.seek(at);
+        int b = raf.read();
+        raf.seek(at);
+        raf.write(b ^ 0xFF);
+      }
+      String message = openFails(copy);
+      assertTrue(message.contains("damaged"), name + ": " + message);
+      if (message.contains("checksum failed") || message.contains("fails its checksum")) {
+        assertTrue(message.contains("its file " + name + " fails its checksum"), message);
+      }
+    }
+  }
 }

@@ -4,6 +4,7 @@ import com.fasterxml.jackson.core.JsonProcessingException;
 import java.io.EOFException;
 import java.io.IOException;
 import java.io.OutputStream;
+import java.io.UncheckedIOException;
 import java.nio.ByteBuffer;
 import java.nio.ByteOrder;
 import java.nio.channels.FileChannel;
@@ -162,6 +163,7 @@ public final class LuceneEventStore implements EventStore {
         throw new IndexException(dir, "is damaged: it holds " + reader.numDocs() + " events but its manifest says "
             + manifest.totalEvents());
       }
+      verifyChecksums(reader);
       return new LuceneEventStore(dir, directory, reader, manifest);
     } catch (IndexException e) {
       closeQuietly(reader, directory);
@@ -172,7 +174,18 @@ public final class LuceneEventStore implements EventStore {
           + "finish leaves none)");
     } catch (CorruptIndexException | EOFException | NoSuchFileException e) {
       closeQuietly(reader, directory);
-      throw new IndexException(dir, "is damaged (" + e.getMessage() + "); ingest it again with --replace", e);
+      String why = String.valueOf(e.getMessage());
+      Matcher resource = RESOURCE_PATH.matcher(why);
+      if (resource.find()) {
+        // Lucene's message names the file inside a description of its reader: name the file, keep the reason
+        String file = Path.of(resource.group(1)).getFileName().toString();
+        int cut = why.indexOf(" (resource=");
+        String reason = why.startsWith("checksum failed") ? "fails its checksum"
+            : "does not read as written (" + (cut > 0 ? why.substring(0, cut) : why) + ")";
+        throw new IndexException(dir, "is damaged: its file " + file + " " + reason + " (it changed after it was "
+            + "written: a disk or copy error?); ingest it again with --replace", e);
+      }
+      throw new IndexException(dir, "is damaged (" + why + "); ingest it again with --replace", e);
     } catch (IndexFormatTooNewException | IndexFormatTooOldException e) {
       closeQuietly(reader, directory);
       throw new IndexException(dir, "was written in a storage format this version cannot read ("
@@ -188,6 +201,29 @@ public final class LuceneEventStore implements EventStore {
       throw new IndexException(dir, "cannot be opened: " + e, e);
     }
   }
+
+  /**
+   * Reads every data file of the commit once and compares its checksum with the one in its footer, so that a damaged
+   * file is refused here, with a clear message, instead of giving wrong numbers or a crash later: Lucene itself checks
+   * the whole of a file only when it merges. The segments are checked in parallel; the cost is one read of the index
+   * (measured in DEVELOPERS.md, "The event index").
+   */
+  private static void verifyChecksums(DirectoryReader reader) throws IOException {
+    try {
+      reader.leaves().parallelStream().forEach(leaf -> {
+        try {
+          leaf.reader().checkIntegrity();
+        } catch (IOException e) {
+          throw new UncheckedIOException(e);
+        }
+      });
+    } catch (UncheckedIOException e) {
+      throw e.getCause();
+    }
+  }
+
+  /** The file a Lucene damage message names, inside its description of the reader. */
+  private static final Pattern RESOURCE_PATH = Pattern.compile("path=\"([^\"]*)\"");
 
   /** Lucene's message when a segment names a codec that no jar on the class path registers. */
   private static final Pattern UNKNOWN_CODEC =

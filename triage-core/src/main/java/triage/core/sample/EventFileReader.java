@@ -88,6 +88,7 @@ public final class EventFileReader {
     try (InputStream head = Files.newInputStream(file)) {
       compressed = head.read() == 0x1f && head.read() == 0x8b;
     }
+    Parse parse = null;
     try (InputStream raw = new DigestInputStream(new BufferedInputStream(Files.newInputStream(file), 1 << 16),
         digest)) {
       // The parser closes what it reads; keep the digesting stream open so the rest can be drained below.
@@ -99,7 +100,7 @@ public final class EventFileReader {
       };
       InputStream in = compressed ? new GZIPInputStream(shielded, 1 << 16) : shielded;
       Reader reader = new BufferedReader(new InputStreamReader(in, StandardCharsets.UTF_8), 1 << 20);
-      Parse parse = new Parse(spec, source, options, sink, rejects, file, delimiter);
+      parse = new Parse(spec, source, options, sink, rejects, file, delimiter);
       parse.run(reader);
       // Drain what the parser left unread (a gzip trailer) so that the fingerprint covers the whole file.
       byte[] rest = new byte[1 << 16];
@@ -108,10 +109,17 @@ public final class EventFileReader {
       }
       return parse.result(Fingerprints.hex(digest), compressed);
     } catch (ZipException | java.io.EOFException e) {
-      throw new InputException(file, 0, 0, "damaged gzip data: " + e.getMessage(), e);
+      throw damagedGzip(file, 0, e, parse == null ? 0 : parse.rowsRead);
     } catch (NoSuchFileException e) {
       throw new InputException(file, "file not found");
     }
+  }
+
+  /** A gzip stream that ends early or does not decompress, with how far the reading got (line 0: not known). */
+  static InputException damagedGzip(Path file, long line, Throwable e, long rows) {
+    return new InputException(file, line, 0, "damaged gzip data: "
+        + (e.getMessage() != null ? e.getMessage() : "the compressed stream ends early")
+        + (rows > 0 ? " (after " + rows + " data rows)" : "") + "; expected a whole gzip file", e);
   }
 
   /** Tab for {@code .tsv}, {@code .tab} (optionally {@code .gz}), else comma. */
@@ -250,7 +258,7 @@ public final class EventFileReader {
       try {
         any = lines.next(fields);
       } catch (IOException e) {
-        throw new InputException(file, 0, 0, "cannot read: " + rootMessage(e), e);
+        throw readFailure(file, e, rowsRead);
       }
       if (lines.quoted()) {
         runCommons(lines.rest(), 0, true);
@@ -268,6 +276,13 @@ public final class EventFileReader {
             break;
           }
         } catch (IOException e) {
+          Throwable root = e;
+          while (root.getCause() != null) {
+            root = root.getCause();
+          }
+          if (root instanceof ZipException || root instanceof java.io.EOFException) {
+            throw damagedGzip(file, line, root, rowsRead);
+          }
           throw new InputException(file, line, 0, "cannot parse the row: " + rootMessage(e), e);
         }
         rowsRead++;
@@ -340,7 +355,7 @@ public final class EventFileReader {
           row(line);
         }
       } catch (UncheckedIOException e) {
-        throw new InputException(file, 0, 0, "cannot read: " + rootMessage(e), e);
+        throw readFailure(file, e, rowsRead);
       }
       flushBatch();
     }
@@ -430,6 +445,18 @@ public final class EventFileReader {
         return '\n';
       }
       return c;
+    }
+
+    /** A failed read: damaged gzip data (a truncated or corrupt stream) said so, anything else as it is. */
+    static InputException readFailure(Path file, Exception e, long rows) {
+      Throwable root = e;
+      while (root.getCause() != null) {
+        root = root.getCause();
+      }
+      if (root instanceof ZipException || root instanceof java.io.EOFException) {
+        return damagedGzip(file, 0, root, rows);
+      }
+      return new InputException(file, 0, 0, "cannot read: " + root.getMessage(), e);
     }
 
     private static String rootMessage(Throwable e) {
@@ -524,7 +551,10 @@ public final class EventFileReader {
       RowFields record = fields;
       problem = null;
       if (record.size() != header.size()) {
-        problem = new RowProblem(file, line, 0, null, null, Kind.FIELD_COUNT,
+        // the place is the first field missing (named by the header) or the first one too many (its text shown)
+        boolean few = record.size() < header.size();
+        problem = new RowProblem(file, line, (few ? record.size() : header.size()) + 1,
+            few ? header.get(record.size()) : null, few ? null : record.get(header.size()), Kind.FIELD_COUNT,
             header.size() + " fields as in the header, found " + record.size());
         reject();
         return;
@@ -679,8 +709,11 @@ public final class EventFileReader {
         try {
           value = Long.parseLong(text);
         } catch (NumberFormatException e) {
+          // digits only but beyond a long: the same limit as below is what was missed
+          boolean digits = text.matches("[+-]?[0-9]+");
           problem = new RowProblem(file, line, at + 1, header.get(at), record.get(at),
-              text.isEmpty() ? Kind.EMPTY_VALUE : Kind.NOT_AN_INTEGER, "a whole number");
+              text.isEmpty() ? Kind.EMPTY_VALUE : Kind.NOT_AN_INTEGER,
+              digits ? "a whole number of magnitude at most 2^53 = 9007199254740992" : "a whole number");
           return 0;
         }
       }

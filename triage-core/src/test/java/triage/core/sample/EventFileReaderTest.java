@@ -149,8 +149,13 @@ class EventFileReaderTest {
   @Test
   void wrongFieldCount() throws IOException {
     InputException e = fails(HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,10.5,3,A,1,1\n", Role.REFERENCE);
-    assertPlace(e, "bad.csv", 3, 0);
-    assertTrue(e.getMessage().contains("expected 8 fields as in the header, found 7"), e.getMessage());
+    assertPlace(e, "bad.csv", 3, 8);
+    assertTrue(e.getMessage().contains("column 'w_down': expected 8 fields as in the header, found 7"),
+        e.getMessage());
+    InputException more = fails(HEADER + "\n1,7,10.5,3,A,1,1,1,extra,9\n", Role.REFERENCE);
+    assertPlace(more, "bad.csv", 2, 9);
+    assertTrue(more.getMessage().contains("found 'extra', expected 8 fields as in the header, found 10"),
+        more.getMessage());
   }
 
   @Test
@@ -274,6 +279,10 @@ class EventFileReaderTest {
     assertTrue(e.getMessage().contains("at most 2^53"), e.getMessage());
     read(write("ok.csv", HEADER + "\n9007199254740992,7,10.5,3,A,1,1,1\n"), Role.REFERENCE,
         ReadOptions.strict());
+    // beyond a long as well: the same limit is named
+    InputException huge = fails(HEADER + "\n12345678901234567890,7,10.5,3,A,1,1,1\n", Role.REFERENCE);
+    assertPlace(huge, "bad.csv", 2, 1);
+    assertTrue(huge.getMessage().contains("at most 2^53"), huge.getMessage());
   }
 
   @Test
@@ -392,6 +401,26 @@ class EventFileReaderTest {
     Files.write(f, java.util.Arrays.copyOf(good, good.length / 2));
     InputException e = assertThrows(InputException.class, () -> read(f, Role.REFERENCE, ReadOptions.strict()));
     assertTrue(e.getMessage().contains("broken.csv.gz"), e.getMessage());
+    assertTrue(e.getMessage().contains("damaged gzip data"), e.getMessage());
+    assertTrue(!e.getMessage().contains("null"), e.getMessage());
+    // five bytes: a gzip header cut short, which the JDK reports without a message
+    Path tiny = dir.resolve("tiny.csv.gz");
+    Files.write(tiny, java.util.Arrays.copyOf(good, 5));
+    InputException t = assertThrows(InputException.class, () -> read(tiny, Role.REFERENCE, ReadOptions.strict()));
+    assertTrue(t.getMessage().contains("damaged gzip data: the compressed stream ends early"), t.getMessage());
+    // many rows, cut in the middle: the message says how far the reading got
+    bytes.reset();
+    try (OutputStream out = new GZIPOutputStream(bytes)) {
+      out.write(HEADER.getBytes(StandardCharsets.UTF_8));
+      for (int i = 1; i <= 200_000; i++) {
+        out.write(("\n" + i + ",7,10.5,3,A,0.5,0.6,0.4").getBytes(StandardCharsets.UTF_8));
+      }
+    }
+    byte[] many = bytes.toByteArray();
+    Path cut = dir.resolve("cut.csv.gz");
+    Files.write(cut, java.util.Arrays.copyOf(many, many.length - 100));
+    InputException c = assertThrows(InputException.class, () -> read(cut, Role.REFERENCE, ReadOptions.strict()));
+    assertTrue(c.getMessage().matches("(?s).*\\(after \\d+ data rows\\).*"), c.getMessage());
   }
 
   @Test
