@@ -69,6 +69,7 @@ public final class EventsCommand implements Callable<Integer> {
         throw new InputException(index, "has no sample '" + sample + "'");
       }
       List<EventRecord> events = new ArrayList<>();
+      Map<String, Map<String, Double>> gradients = null;
       String order = null;
       long selected = 1;
       if (id != null) {
@@ -78,6 +79,12 @@ public final class EventsCommand implements Callable<Integer> {
         o.say("event %d of %s (row %d, input line %d), weight %s", id, sample, e.row(), e.line(), e.weight());
         e.numbers().forEach((k, v) -> o.say("  %-20s %s", k, plain(v)));
         e.categories().forEach((k, v) -> o.say("  %-20s %s", k, v));
+        gradients = gradients(m, e);
+        gradients.forEach((version, g) -> {
+          o.say("  ∂f/∂x of model %s at this event, in the features' own units (signed; the score rises with a "
+              + "feature where positive):", version);
+          g.forEach((k, v) -> o.say("    %-18s %s", k, plain(v)));
+        });
       } else {
         order = by != null ? by : latestScore(m, "give --by COLUMN, or fit a model first (triage fit)");
         Selection selection = where == null ? Selection.all() : store.where(where);
@@ -120,6 +127,7 @@ public final class EventsCommand implements Callable<Integer> {
       result.put("orderBy", order);
       result.put("selected", selected);
       result.put("events", events);
+      result.put("gradients", gradients);
       o.result(result);
     }
     return ExitCodes.OK;
@@ -190,6 +198,37 @@ public final class EventsCommand implements Callable<Integer> {
   /** A value as text: whole numbers (ids, runs, blocks, counts) without a trailing ".0", others as read back. */
   static String plain(double v) {
     return v == Math.rint(v) && Math.abs(v) <= 0x1p53 ? Long.toString((long) v) : Double.toString(v);
+  }
+
+  /**
+   * For every fitted model of the index (not an external score, which has no model to differentiate), ∂f/∂x_k at
+   * this event in the features' original units, by model version and feature.
+   */
+  private Map<String, Map<String, Double>> gradients(Manifest m, EventRecord e) throws java.io.IOException {
+    Map<String, Map<String, Double>> out = new LinkedHashMap<>();
+    for (Manifest.Model mm : m.models()) {
+      if (mm.modelFile() == null) {
+        continue;
+      }
+      triage.core.ratio.RatioModel model = ModelFiles.load(index, mm);
+      List<String> names = model.featureNames();
+      double[] x = new double[names.size()];
+      for (int k = 0; k < x.length; k++) {
+        Double v = e.numbers().get(names.get(k));
+        if (v == null) {
+          throw new InputException(index, "model " + mm.version() + " needs feature '" + names.get(k)
+              + "', which event " + id + " of " + sample + " lacks");
+        }
+        x[k] = v;
+      }
+      double[] g = model.gradient(x);
+      Map<String, Double> byFeature = new LinkedHashMap<>();
+      for (int k = 0; k < x.length; k++) {
+        byFeature.put(names.get(k), g[k]);
+      }
+      out.put(mm.version(), byFeature);
+    }
+    return out;
   }
 
   /** The latest model's score column; with no model, an input error that says what to do instead. */

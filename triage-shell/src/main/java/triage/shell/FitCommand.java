@@ -148,6 +148,23 @@ public final class FitCommand implements Callable<Integer> {
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
     FitSettings settings = settings(clip(o));
+    CommandLine.ParseResult parsed = spec.commandLine().getParseResult();
+    if (parsed.hasMatchedOption("--layers") && parsed.matchedOption("--layers").originalStringValues().size() > 1) {
+      throw new CommandLine.ParameterException(spec.commandLine(), "--layers is given more than once; give every "
+          + "hidden layer's width in one list, e.g. --layers 5,5");
+    }
+    List<String> idle = new java.util.ArrayList<>();
+    for (String name : settings.optimiser() == OptimiserKind.ADAM
+        ? List.of("--max-iterations", "--tolerance", "--gradient-tolerance") : List.of("--epochs", "--learning-rate")) {
+      if (parsed.hasMatchedOption(name)) {
+        idle.add(name);
+      }
+    }
+    if (!idle.isEmpty()) {
+      o.note("warning: %s %s no effect with --optimiser %s (%s)", String.join(", ", idle),
+          idle.size() == 1 ? "has" : "have", training.optimiser, settings.optimiser() == OptimiserKind.ADAM
+              ? "Adam runs --epochs epochs" : "--epochs and --learning-rate are Adam's");
+    }
     if (versionName != null && Manifest.versionNameProblem(versionName) != null) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--version-name: "
           + Manifest.versionNameProblem(versionName));
@@ -223,7 +240,7 @@ public final class FitCommand implements Callable<Integer> {
       provenance.put("referenceSha256", m.sample(reference).sha256());
       store.addScores(version, scores, Output.JSON.writeValueAsString(doc));
       o.say("model %s: t = %.4f, %d parameters, %s after %d iterations (%d loss evaluations), %.1f s", version,
-          fit.testStatistic(), model.parameterCount(), !fit.converged() ? "NOT converged (" + fit.stopReason() + ")"
+          fit.testStatistic() + 0.0, model.parameterCount(), !fit.converged() ? "NOT converged (" + fit.stopReason() + ")"
               : fit.stopReason() == triage.core.ratio.StopReason.LINE_SEARCH_FAILED
               ? "converged (small projected gradient, where the line search could not improve further)"
               : "converged", fit.iterations(), fit.lossEvaluations(), fit.elapsedSeconds());

@@ -298,6 +298,23 @@ class CliTest {
     assertEquals(0, rank.code(), rank.err());
     assertTrue(JSON.readTree(rank.out()).get("attribution").get("m").asDouble() > 0, rank.out());
     assertTrue(Files.exists(index.resolve("models/m1.json")));
+    // One event's ∂f/∂m in the feature's units: a central difference of the stored model's f (h = 1e-5, agreement
+    // to 1e-6 relative, the difference's truncation and rounding error at this h).
+    Run one = run("events", "--index", index.toString(), "--sample", "observed", "--id", "5", "--json");
+    assertEquals(0, one.code(), one.err());
+    JsonNode ev = JSON.readTree(one.out());
+    double m = ev.get("events").get(0).get("numbers").get("m").asDouble();
+    double g = ev.get("gradients").get("m1").get("m").asDouble();
+    com.fasterxml.jackson.databind.node.ObjectNode doc = (com.fasterxml.jackson.databind.node.ObjectNode)
+        JSON.readTree(Files.readString(index.resolve("models/m1.json")));
+    doc.remove("provenance");
+    triage.core.ratio.RatioModel model = triage.core.ratio.RatioModel.fromJson(JSON.writeValueAsString(doc));
+    double h = 1e-5;
+    double fd = (model.score(new double[] {m + h}) - model.score(new double[] {m - h})) / (2 * h);
+    assertEquals(fd, g, 1e-6 * Math.max(1, Math.abs(fd)), one.out());
+    assertTrue(run("events", "--index", index.toString(), "--sample", "observed", "--id", "5").out()
+        .contains("∂f/∂x of model m1 at this event"));
+    assertTrue(JSON.readTree(run("events", "--index", index.toString(), "--json").out()).get("gradients").isNull());
     // A version name that exists, or cannot be a file name, is refused before any fitting.
     for (String name : new String[] {"m1", "a/b", "..", "external"}) {
       Run again = run("fit", "--index", index.toString(), "--layers", "2", "--version-name", name);
@@ -346,6 +363,19 @@ class CliTest {
     Run bce = run("fit", "--index", index.toString(), "--optimiser", "profiled", "--loss", "cross-entropy");
     assertEquals(ExitCodes.USAGE, bce.code(), bce.err());
     assertTrue(bce.err().contains("extended loss"), bce.err());
+    // Widths in two --layers options would be joined into one deeper network: refused.
+    Run twice = run("fit", "--index", index.toString(), "--layers", "5,5", "--layers", "3");
+    assertEquals(ExitCodes.USAGE, twice.code(), twice.err());
+    assertTrue(twice.err().contains("--layers is given more than once"), twice.err());
+    // Options of the other optimiser are said to have no effect.
+    Run idle = run("fit", "--index", index.toString(), "--layers", "2", "--max-iterations", "5", "--epochs", "7");
+    assertEquals(0, idle.code(), idle.err());
+    assertTrue(idle.err().contains("warning: --epochs has no effect with --optimiser lbfgs"), idle.err());
+    Run idleAdam = run("fit", "--index", index.toString(), "--layers", "2", "--optimiser", "adam", "--epochs", "3",
+        "--max-iterations", "5", "--tolerance", "0.5");
+    assertEquals(0, idleAdam.code(), idleAdam.err());
+    assertTrue(idleAdam.err().contains("warning: --max-iterations, --tolerance have no effect with --optimiser adam"),
+        idleAdam.err());
   }
 
   @Test
