@@ -521,9 +521,11 @@ public final class CalibrateCommand implements Callable<Integer> {
       if (sample == null) {
         throw new InputException(index, "--inject-sample: the index has no sample '" + injectSample + "'");
       }
-      if (sample.role() == Role.REFERENCE) {
-        throw new InputException(index, "--inject-sample: '" + injectSample + "' is the reference sample; inject "
-            + "another sample");
+      // only the reference the toys are drawn from is refused: another sample with the reference role (a
+      // weighted signal simulation, as docs/sample-spec.md suggests) is what injection is for
+      if (injectSample.equals(Roles.name(c.manifest(), Role.REFERENCE))) {
+        throw new InputException(index, "--inject-sample: '" + injectSample + "' is the reference sample the toys "
+            + "are drawn from; inject another sample");
       }
       double[] w = c.store().weights(injectSample);
       for (int i = 0; i < w.length; i++) {

@@ -249,4 +249,48 @@ class CalibrateCommandTest {
     CliTest.Run noYield = run("calibrate", "--index", a.toString(), "--toys", "5", "--inject-bump", "m=1,1");
     assertEquals(ExitCodes.USAGE, noYield.code());
   }
+
+  /**
+   * A weighted signal simulation declared with the reference role (as docs/sample-spec.md suggests) can be injected;
+   * only the reference the toys are drawn from is refused.
+   */
+  @Test
+  void aWeightedSignalSampleWithTheReferenceRoleCanBeInjected() throws IOException {
+    fittedIndex();
+    StringBuilder sig = new StringBuilder("event,m,w\n");
+    java.util.SplittableRandom r = new java.util.SplittableRandom(9);
+    for (int i = 0; i < 300; i++) {
+      sig.append(20_000 + i).append(',').append(2 + 0.1 * r.nextGaussian()).append(',')
+          .append(0.5 + r.nextDouble()).append('\n');
+    }
+    Files.writeString(dir.resolve("wsig.csv"), sig);
+    Files.writeString(dir.resolve("spec.json"), """
+        {"format": "triage-samples/1", "columns": {"features": ["m"], "id": "event"},
+         "samples": [{"name": "reference", "role": "reference", "file": "ref.csv", "weight": "w"},
+                     {"name": "observed", "role": "observed", "file": "obs.csv"},
+                     {"name": "signal", "role": "reference", "file": "wsig.csv", "weight": "w"}]}
+        """);
+    Path b = dir.resolve("b");
+    assertEquals(0, run("ingest", "--index", b.toString(), "--spec", dir.resolve("spec.json").toString()).code());
+    assertEquals(0, run("fit", "--index", b.toString(), "--layers", "2", "--max-iterations", "100", "--threads",
+        "1").code());
+    CliTest.Run ok = run("calibrate", "--index", b.toString(), "--toys", "3", "--inject-sample", "signal",
+        "--inject-yield", "20", "--plot", "none", "--json");
+    assertEquals(0, ok.code(), ok.err());
+    assertEquals(3, JSON.readTree(ok.out()).get("toys").size(), ok.out());
+    CliTest.Run own = run("calibrate", "--index", b.toString(), "--toys", "3", "--inject-sample", "reference",
+        "--inject-yield", "20");
+    assertEquals(ExitCodes.INPUT, own.code(), own.err());
+    assertTrue(own.err().contains("is the reference sample the toys are drawn from"), own.err());
+    // a plot that cannot be written (its folder is a file) is invalid input naming it, not a crash
+    CliTest.Run blocked = run("calibrate", "--index", b.toString(), "--toys", "3", "--plot",
+        dir.resolve("spec.json").resolve("p").toString());
+    assertEquals(ExitCodes.INPUT, blocked.code(), blocked.err());
+    assertTrue(blocked.err().contains("cannot write the plot here"), blocked.err());
+    assertFalse(blocked.err().contains("\tat "), blocked.err());
+    CliTest.Run hist = run("hist", "--index", b.toString(), "--column", "m", "--png",
+        dir.resolve("spec.json").resolve("h.png").toString());
+    assertEquals(ExitCodes.INPUT, hist.code(), hist.err());
+    assertTrue(hist.err().contains("spec.json: is a file"), hist.err());
+  }
 }

@@ -260,9 +260,10 @@ public final class Calibration {
       warnings.add(String.format(java.util.Locale.ROOT, "t_obs = %.4g is beyond the largest toy (%.4g): the "
           + "asymptotic p-values are extrapolations", observed, max));
     } else {
-      headline = String.format(java.util.Locale.ROOT, "the empirical toy p-value: p = %.3g ± %.2g, Z = %.2f "
-          + "(%d of %d toys at or above t_obs)", emp.pValue(), emp.standardError(), emp.z(), emp.exceedances(),
-          toys.length);
+      headline = String.format(java.util.Locale.ROOT, "the empirical toy p-value: p = (k+1)/(N+1) = %.3g, Z = %.2f "
+          + "(k = %d of N = %d toys at or above t_obs; binomial error of the tail probability ± %.2g, 68%% "
+          + "Clopper–Pearson interval %.3g–%.3g)", emp.pValue(), emp.z(), emp.exceedances(), toys.length,
+          emp.standardError(), emp.lower(), emp.upper());
       // Only where it matters: when either figure claims at least a 1σ excess.
       if (!Double.isNaN(zFromFit) && Math.max(zFromFit, emp.z()) >= 1 && Math.abs(zFromFit - emp.z()) > 1) {
         warnings.add(String.format(java.util.Locale.ROOT, "the empirical Z (%.2f) and the fitted-χ² Z (%.2f) differ"

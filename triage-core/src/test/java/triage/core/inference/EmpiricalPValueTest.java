@@ -40,6 +40,12 @@ class EmpiricalPValueTest {
       // CHECK-VALUES.md §1 [C]: Phi^-1(1 - 0.001) = 3.0902323062; tolerance 1e-10 absolute
       assertEquals(3.0902323062, r.z(), 1e-10);
       assertEquals(0.0, r.lower());
+      // N = 100: p < 0.01, Z > 2.33 (common practice, no source); Phi^-1(0.99) = 2.3263478740408408 computed with
+      // SciPy 1.17.1 (scipy.stats.norm.isf(0.01)); tolerance 1e-10 absolute
+      final EmpiricalPValue.Result hundred = EmpiricalPValue.withDefaults().with(e).test(new double[100], 1);
+      assertEquals(EmpiricalPValue.Bound.UPPER_BOUND, hundred.bound());
+      assertEquals(0.01, hundred.pValue(), 0.0);
+      assertEquals(2.3263478740, hundred.z(), 1e-10);
     }
   }
 

@@ -88,16 +88,36 @@ public final class HistogramChart {
     return chart;
   }
 
-  /** Writes PNG. */
-  public static void png(JFreeChart chart, Path file, int width, int height) throws IOException {
+  /** Writes PNG; a file that cannot be written is invalid input naming it. */
+  public static void png(JFreeChart chart, Path file, int width, int height) {
     BufferedImage image = chart.createBufferedImage(width, height);
-    ImageIO.write(image, "png", file.toFile());
+    try {
+      if (!ImageIO.write(image, "png", file.toFile())) {
+        throw new IOException("no PNG writer");
+      }
+    } catch (IOException e) {
+      throw cannotWrite(file, e);
+    }
   }
 
-  /** Writes SVG. */
-  public static void svg(JFreeChart chart, Path file, int width, int height) throws IOException {
+  /** Writes SVG; a file that cannot be written is invalid input naming it. */
+  public static void svg(JFreeChart chart, Path file, int width, int height) {
     SVGGraphics2D g = new SVGGraphics2D(width, height);
     chart.draw(g, new Rectangle(0, 0, width, height));
-    Files.writeString(file, g.getSVGDocument());
+    try {
+      Files.writeString(file, g.getSVGDocument());
+    } catch (IOException e) {
+      throw cannotWrite(file, e);
+    }
+  }
+
+  /** A plot file that cannot be written (its folder missing or a file, no permission), as invalid input. */
+  static triage.core.sample.InputException cannotWrite(Path file, IOException e) {
+    String why = e instanceof java.nio.file.FileSystemException fs && fs.getReason() != null ? fs.getReason()
+        : e instanceof java.nio.file.FileAlreadyExistsException ? "a file is in the way of a folder"
+        : e instanceof java.nio.file.NoSuchFileException ? "its folder does not exist"
+        : e instanceof java.nio.file.AccessDeniedException ? "permission denied"
+        : e.getMessage() != null ? e.getMessage() : e.getClass().getSimpleName();
+    return new triage.core.sample.InputException(file, "cannot write the plot here: " + why);
   }
 }

@@ -162,10 +162,15 @@ public final class ToyChart {
   }
 
   /** Writes PREFIX.png and PREFIX.svg; returns both paths. */
-  public static List<Path> write(JFreeChart chart, Path prefix) throws IOException {
+  public static List<Path> write(JFreeChart chart, Path prefix) {
     Path png = prefix.resolveSibling(prefix.getFileName() + ".png");
     Path svg = prefix.resolveSibling(prefix.getFileName() + ".svg");
-    java.nio.file.Files.createDirectories(png.toAbsolutePath().getParent());
+    Path folder = png.toAbsolutePath().getParent();
+    try {
+      java.nio.file.Files.createDirectories(folder);
+    } catch (IOException e) {
+      throw HistogramChart.cannotWrite(png, e);
+    }
     HistogramChart.png(chart, png, 900, 600);
     HistogramChart.svg(chart, svg, 900, 600);
     return List.of(png, svg);
