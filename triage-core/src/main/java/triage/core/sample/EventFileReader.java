@@ -276,10 +276,7 @@ public final class EventFileReader {
             break;
           }
         } catch (IOException e) {
-          Throwable root = e;
-          while (root.getCause() != null) {
-            root = root.getCause();
-          }
+          Throwable root = root(e);
           if (root instanceof ZipException || root instanceof java.io.EOFException) {
             throw damagedGzip(file, line, root, rowsRead);
           }
@@ -449,10 +446,7 @@ public final class EventFileReader {
 
     /** A failed read: damaged gzip data (a truncated or corrupt stream) said so, anything else as it is. */
     static InputException readFailure(Path file, Exception e, long rows) {
-      Throwable root = e;
-      while (root.getCause() != null) {
-        root = root.getCause();
-      }
+      Throwable root = root(e);
       if (root instanceof ZipException || root instanceof java.io.EOFException) {
         return damagedGzip(file, 0, root, rows);
       }
@@ -460,11 +454,16 @@ public final class EventFileReader {
     }
 
     private static String rootMessage(Throwable e) {
+      return root(e).getMessage();
+    }
+
+    /** The innermost cause. */
+    private static Throwable root(Throwable e) {
       Throwable t = e;
       while (t.getCause() != null) {
         t = t.getCause();
       }
-      return t.getMessage();
+      return t;
     }
 
     private void readHeader(List<String> names) {
