@@ -79,11 +79,13 @@ public final class EventsCommand implements Callable<Integer> {
         o.say("event %d of %s (row %d, input line %d), weight %s", id, sample, e.row(), e.line(), e.weight());
         e.numbers().forEach((k, v) -> o.say("  %-20s %s", k, plain(v)));
         e.categories().forEach((k, v) -> o.say("  %-20s %s", k, v));
-        gradients = gradients(m, e);
+        gradients = gradients(o, m, e);
         gradients.forEach((version, g) -> {
-          o.say("  ∂f/∂x of model %s at this event, in the features' own units (signed; the score rises with a "
-              + "feature where positive):", version);
-          g.forEach((k, v) -> o.say("    %-18s %s", k, plain(v)));
+          if (g != null) {
+            o.say("  ∂f/∂x of model %s at this event, in the features' own units (signed; the score rises with a "
+                + "feature where positive):", version);
+            g.forEach((k, v) -> o.say("    %-18s %s", k, plain(v)));
+          }
         });
       } else {
         order = by != null ? by : latestScore(m, "give --by COLUMN, or fit a model first (triage fit)");
@@ -202,24 +204,38 @@ public final class EventsCommand implements Callable<Integer> {
 
   /**
    * For every fitted model of the index (not an external score, which has no model to differentiate), ∂f/∂x_k at
-   * this event in the features' original units, by model version and feature.
+   * this event in the features' original units, by model version and feature; null, with a note, for a model whose
+   * file cannot be read or whose features the event lacks (the event is shown all the same).
    */
-  private Map<String, Map<String, Double>> gradients(Manifest m, EventRecord e) throws java.io.IOException {
+  private Map<String, Map<String, Double>> gradients(Output o, Manifest m, EventRecord e) throws java.io.IOException {
     Map<String, Map<String, Double>> out = new LinkedHashMap<>();
     for (Manifest.Model mm : m.models()) {
       if (mm.modelFile() == null) {
         continue;
       }
-      triage.core.ratio.RatioModel model = ModelFiles.load(index, mm);
+      triage.core.ratio.RatioModel model;
+      try {
+        model = ModelFiles.load(index, mm);
+      } catch (InputException | java.io.IOException problem) {
+        o.note("note: no ∂f/∂x for model %s: %s", mm.version(), problem.getMessage());
+        out.put(mm.version(), null);
+        continue;
+      }
       List<String> names = model.featureNames();
       double[] x = new double[names.size()];
-      for (int k = 0; k < x.length; k++) {
+      String lacking = null;
+      for (int k = 0; k < x.length && lacking == null; k++) {
         Double v = e.numbers().get(names.get(k));
         if (v == null) {
-          throw new InputException(index, "model " + mm.version() + " needs feature '" + names.get(k)
-              + "', which event " + id + " of " + sample + " lacks");
+          lacking = names.get(k);
+        } else {
+          x[k] = v;
         }
-        x[k] = v;
+      }
+      if (lacking != null) {
+        o.note("note: no ∂f/∂x for model %s: it needs feature '%s', which this event lacks", mm.version(), lacking);
+        out.put(mm.version(), null);
+        continue;
       }
       double[] g = model.gradient(x);
       Map<String, Double> byFeature = new LinkedHashMap<>();

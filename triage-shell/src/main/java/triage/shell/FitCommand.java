@@ -147,15 +147,17 @@ public final class FitCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
-    FitSettings settings = settings(clip(o));
     CommandLine.ParseResult parsed = spec.commandLine().getParseResult();
     if (parsed.hasMatchedOption("--layers") && parsed.matchedOption("--layers").originalStringValues().size() > 1) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--layers is given more than once; give every "
           + "hidden layer's width in one list, e.g. --layers 5,5");
     }
+    FitSettings settings = settings(clip(o));
+    // Adam runs its epochs and then judges convergence by --tolerance and --gradient-tolerance; only the iteration
+    // cap is L-BFGS's alone
     List<String> idle = new java.util.ArrayList<>();
     for (String name : settings.optimiser() == OptimiserKind.ADAM
-        ? List.of("--max-iterations", "--tolerance", "--gradient-tolerance") : List.of("--epochs", "--learning-rate")) {
+        ? List.of("--max-iterations") : List.of("--epochs", "--learning-rate")) {
       if (parsed.hasMatchedOption(name)) {
         idle.add(name);
       }
@@ -163,7 +165,8 @@ public final class FitCommand implements Callable<Integer> {
     if (!idle.isEmpty()) {
       o.note("warning: %s %s no effect with --optimiser %s (%s)", String.join(", ", idle),
           idle.size() == 1 ? "has" : "have", training.optimiser, settings.optimiser() == OptimiserKind.ADAM
-              ? "Adam runs --epochs epochs" : "--epochs and --learning-rate are Adam's");
+              ? "Adam runs --epochs epochs, then judges convergence by the tolerances"
+              : "--epochs and --learning-rate are Adam's");
     }
     if (versionName != null && Manifest.versionNameProblem(versionName) != null) {
       throw new CommandLine.ParameterException(spec.commandLine(), "--version-name: "

@@ -163,7 +163,11 @@ public final class LuceneEventStore implements EventStore {
         throw new IndexException(dir, "is damaged: it holds " + reader.numDocs() + " events but its manifest says "
             + manifest.totalEvents());
       }
-      verifyChecksums(reader);
+      String commit = dir.toAbsolutePath().normalize() + "#" + reader.getIndexCommit().getSegmentsFileName();
+      if (!VERIFIED.contains(commit)) {
+        verifyChecksums(reader);
+        VERIFIED.add(commit);
+      }
       return new LuceneEventStore(dir, directory, reader, manifest);
     } catch (IndexException e) {
       closeQuietly(reader, directory);
@@ -201,6 +205,13 @@ public final class LuceneEventStore implements EventStore {
       throw new IndexException(dir, "cannot be opened: " + e, e);
     }
   }
+
+  /**
+   * Commits whose files this process has verified ({@link #verifyChecksums}), by folder and segments file: the
+   * console and {@code triage run} open the index for every command, and reading the whole index each time would
+   * cost every command that much (a new commit, e.g. after an ingest, is verified again).
+   */
+  private static final Set<String> VERIFIED = ConcurrentHashMap.newKeySet();
 
   /**
    * Reads every data file of the commit once and compares its checksum with the one in its footer, so that a damaged

@@ -359,6 +359,10 @@ public final class EventFileReader {
 
     /** The error for a record starting on line {@code at} that the parser could not read. */
     private InputException unclosedQuote(UncheckedIOException e, long at) {
+      Throwable root = root(e);
+      if (root instanceof ZipException || root instanceof java.io.EOFException) {
+        return damagedGzip(file, at, root, rowsRead);
+      }
       String why = rootMessage(e);
       // the parser's own wording counts lines from where it was started, not from the file's start
       if (why != null && why.contains("EOF reached before encapsulated token finished")) {
@@ -554,7 +558,8 @@ public final class EventFileReader {
         boolean few = record.size() < header.size();
         problem = new RowProblem(file, line, (few ? record.size() : header.size()) + 1,
             few ? header.get(record.size()) : null, few ? null : record.get(header.size()), Kind.FIELD_COUNT,
-            header.size() + " fields as in the header, found " + record.size());
+            header.size() + " fields as in the header; this row has " + record.size()
+            + (few ? ", so this column is missing" : ": this is the first field too many"));
         reject();
         return;
       }

@@ -150,11 +150,13 @@ class EventFileReaderTest {
   void wrongFieldCount() throws IOException {
     InputException e = fails(HEADER + "\n1,7,10.5,3,A,1,1,1\n2,7,10.5,3,A,1,1\n", Role.REFERENCE);
     assertPlace(e, "bad.csv", 3, 8);
-    assertTrue(e.getMessage().contains("column 'w_down': expected 8 fields as in the header, found 7"),
+    assertTrue(e.getMessage().contains(
+        "column 'w_down': expected 8 fields as in the header; this row has 7, so this column is missing"),
         e.getMessage());
     InputException more = fails(HEADER + "\n1,7,10.5,3,A,1,1,1,extra,9\n", Role.REFERENCE);
     assertPlace(more, "bad.csv", 2, 9);
-    assertTrue(more.getMessage().contains("found 'extra', expected 8 fields as in the header, found 10"),
+    assertTrue(more.getMessage().contains(
+        "found 'extra', expected 8 fields as in the header; this row has 10: this is the first field too many"),
         more.getMessage());
   }
 
@@ -421,6 +423,20 @@ class EventFileReaderTest {
     Files.write(cut, java.util.Arrays.copyOf(many, many.length - 100));
     InputException c = assertThrows(InputException.class, () -> read(cut, Role.REFERENCE, ReadOptions.strict()));
     assertTrue(c.getMessage().matches("(?s).*\\(after \\d+ data rows\\).*"), c.getMessage());
+    // the same with quoted fields (read by the other parser)
+    bytes.reset();
+    try (OutputStream out = new GZIPOutputStream(bytes)) {
+      out.write(HEADER.getBytes(StandardCharsets.UTF_8));
+      for (int i = 1; i <= 200_000; i++) {
+        out.write(("\n" + i + ",7,\"10.5\",3,A,0.5,0.6,0.4").getBytes(StandardCharsets.UTF_8));
+      }
+    }
+    byte[] quoted = bytes.toByteArray();
+    Path cutQuoted = dir.resolve("cutq.csv.gz");
+    Files.write(cutQuoted, java.util.Arrays.copyOf(quoted, quoted.length * 3 / 4));
+    InputException q = assertThrows(InputException.class,
+        () -> read(cutQuoted, Role.REFERENCE, ReadOptions.strict()));
+    assertTrue(q.getMessage().contains("damaged gzip data"), q.getMessage());
   }
 
   @Test

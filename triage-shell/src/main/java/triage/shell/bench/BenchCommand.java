@@ -149,8 +149,9 @@ public final class BenchCommand implements Runnable {
           Arrays.sort(warmRates);
           int k = warmRates.length;
           double median = k % 2 == 1 ? warmRates[k / 2] : (warmRates[k / 2 - 1] + warmRates[k / 2]) / 2;
-          o.say("warm runs (2-%d): median %.0f events/s (min %.0f, max %.0f); the cold run is what a single "
-              + "`triage ingest` of this size sees", runs, median, warmRates[0], warmRates[k - 1]);
+          o.say("warm %s: median %.0f events/s (min %.0f, max %.0f); the cold run is what a single "
+              + "`triage ingest` of this size sees", runs == 2 ? "run (2)" : "runs (2-" + runs + ")", median,
+              warmRates[0], warmRates[k - 1]);
         }
       } finally {
         cleanUp(folder);

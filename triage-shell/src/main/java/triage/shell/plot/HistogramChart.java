@@ -91,8 +91,10 @@ public final class HistogramChart {
   /** Writes PNG; a file that cannot be written is invalid input naming it. */
   public static void png(JFreeChart chart, Path file, int width, int height) {
     BufferedImage image = chart.createBufferedImage(width, height);
-    try {
-      if (!ImageIO.write(image, "png", file.toFile())) {
+    // through our own stream: given a File, the JDK's writer prints a trace of its own when the file cannot be
+    // opened, reports that without the system's reason, and deletes an empty folder in the way
+    try (java.io.OutputStream out = Files.newOutputStream(file)) {
+      if (!ImageIO.write(image, "png", out)) {
         throw new IOException("no PNG writer");
       }
     } catch (IOException e) {
