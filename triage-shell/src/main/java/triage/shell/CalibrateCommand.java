@@ -135,7 +135,8 @@ public final class CalibrateCommand implements Callable<Integer> {
 
   /** What a run works on. */
   private record Context(EventStore store, Manifest manifest, Manifest.Model mm, RatioModel model,
-      FitSettings settings, double expected, double tObs, String nullFingerprint, Path folder) {}
+      FitSettings settings, double expected, double tObs, String nullFingerprint, Map<String, String> nullParts,
+      Path folder) {}
 
   @Override
   public Integer call() throws Exception {
@@ -213,9 +214,16 @@ public final class CalibrateCommand implements Callable<Integer> {
       settings = settings.withThreads(threads);
     }
     double expected = model.training().expectedCount();
-    String fingerprint = fingerprint(Output.JSON.writeValueAsString(settings.withThreads(1)) + "|" + expected
-        + "|" + seed + "|" + m.indexId() + "|" + mm.version() + "|" + mm.sha256());
-    return new Context(store, m, mm, model, settings, expected, model.training().testStatistic(), fingerprint,
+    String settingsJson = Output.JSON.writeValueAsString(settings.withThreads(1));
+    String fingerprint = fingerprint(settingsJson + "|" + expected + "|" + seed + "|" + m.indexId() + "|"
+        + mm.version() + "|" + mm.sha256());
+    // the same parts, recorded so that a refused merge can name what differs (seed and model have fields of their own)
+    Map<String, String> parts = new LinkedHashMap<>();
+    parts.put("fit settings", fingerprint(settingsJson));
+    parts.put("expected count", String.valueOf(expected));
+    parts.put("index id", m.indexId());
+    parts.put("model file", mm.sha256());
+    return new Context(store, m, mm, model, settings, expected, model.training().testStatistic(), fingerprint, parts,
         index.resolve("toys").resolve(mm.version()));
   }
 
@@ -224,7 +232,7 @@ public final class CalibrateCommand implements Callable<Integer> {
   }
 
   private ToyLog.Header nullHeader(Context c) {
-    return new ToyLog.Header(ToyLog.FORMAT, c.nullFingerprint(), c.mm().version(), seed, "null");
+    return new ToyLog.Header(ToyLog.FORMAT, c.nullFingerprint(), c.mm().version(), seed, "null", c.nullParts());
   }
 
   /** The reference sample as the model sees it: feature-major features and weights. */

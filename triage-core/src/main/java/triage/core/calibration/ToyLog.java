@@ -60,12 +60,20 @@ public final class ToyLog {
    * @param model the model version (null in files written before it was recorded)
    * @param seed the run seed (null in older files)
    * @param kind what the toys are: {@code null}, {@code signal …} or {@code clip-tuning …} (null in older files)
+   * @param parts what went into the fingerprint besides the model and seed, part by part, so that a refused merge
+   *     can say which differs (null in older files and for toys other than null toys)
    */
   @JsonInclude(JsonInclude.Include.NON_NULL)
-  public record Header(String format, String settings, String model, Long seed, String kind) {
+  public record Header(String format, String settings, String model, Long seed, String kind,
+      java.util.Map<String, String> parts) {
+    /** A header without the parts. */
+    public Header(String format, String settings, String model, Long seed, String kind) {
+      this(format, settings, model, seed, kind, null);
+    }
+
     /** A header with the fingerprint only. */
     public Header(String format, String settings) {
-      this(format, settings, null, null, null);
+      this(format, settings, null, null, null, null);
     }
   }
 

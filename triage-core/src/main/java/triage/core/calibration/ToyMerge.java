@@ -119,6 +119,15 @@ public final class ToyMerge {
     if (file.kind() != null && run.kind() != null && !file.kind().equals(run.kind())) {
       reasons.add("it holds " + file.kind() + " toys, not " + run.kind() + " toys");
     }
+    if (reasons.isEmpty() && file.parts() != null && run.parts() != null) {
+      for (var part : run.parts().entrySet()) {
+        String theirs = file.parts().get(part.getKey());
+        if (!part.getValue().equals(theirs)) {
+          reasons.add("its " + part.getKey() + " differ" + (part.getKey().endsWith("s") ? "" : "s") + " ("
+              + theirs + " in the file, " + part.getValue() + " here)");
+        }
+      }
+    }
     if (reasons.isEmpty()) {
       reasons.add("its settings fingerprint is " + file.settings() + " and this index's is " + run.settings()
           + ": the fit settings, expected count, index or model file differ");

@@ -48,6 +48,22 @@ class ToyMergeTest {
     x = assertThrows(InputException.class, () -> ToyMerge.plan(new TreeMap<>(), folder, List.of(oldFormat), h));
     assertTrue(x.getMessage().contains("fingerprint is fp3"), x.getMessage());
 
+    // with the parts recorded, the refusal names the part that differs
+    java.util.Map<String, String> parts = new java.util.LinkedHashMap<>();
+    parts.put("fit settings", "s1");
+    parts.put("expected count", "300.0");
+    ToyLog.Header withParts = new ToyLog.Header(ToyLog.FORMAT, "fp1", "m1", 1L, "null", parts);
+    java.util.Map<String, String> otherParts = new java.util.LinkedHashMap<>(parts);
+    otherParts.put("expected count", "250.0");
+    Path otherCount = dir.resolve("seed-1-other-count.jsonl");
+    ToyLog.append(otherCount, new ToyLog.Header(ToyLog.FORMAT, "fp9", "m1", 1L, "null", otherParts),
+        List.of(e(0, 1)));
+    x = assertThrows(InputException.class,
+        () -> ToyMerge.plan(new TreeMap<>(), folder, List.of(otherCount), withParts));
+    assertTrue(x.getMessage().contains("its expected count differs (250.0 in the file, 300.0 here)"),
+        x.getMessage());
+    assertTrue(!x.getMessage().contains("fit settings"), x.getMessage());
+
     Path clash = dir.resolve("clash.jsonl");
     ToyLog.append(clash, h, List.of(e(1, 3.5000001)));
     TreeMap<Long, ToyLog.Entry> existing = new TreeMap<>(plan.all());
