@@ -150,8 +150,17 @@ public final class ToyChart {
     }
     LogAxis x = new LogAxis("iteration cap");
     x.setSmallestValue(0.5);
-    // One tick per decade, labelled as plain numbers (10, 100, 1,000) rather than powers.
-    x.setTickUnit(new org.jfree.chart.axis.NumberTickUnit(1));
+    // One tick per decade, labelled as plain numbers (10, 100, 1,000) rather than powers; where the caps span less
+    // than two decades, a tick at every power of two (16, 32, 64, 128, ...), so that more than one is labelled.
+    double lo = Double.POSITIVE_INFINITY;
+    double hi = 0;
+    for (ClipTuning.Curve curve : curves) {
+      for (double cap : curve.caps()) {
+        lo = Math.min(lo, cap);
+        hi = Math.max(hi, cap);
+      }
+    }
+    x.setTickUnit(new org.jfree.chart.axis.NumberTickUnit(hi < 100 * lo ? Math.log10(2) : 1));
     x.setNumberFormatOverride(new java.text.DecimalFormat("#,##0", java.text.DecimalFormatSymbols.getInstance(
         Locale.ROOT)));
     NumberAxis y = new NumberAxis("toy t (median solid, 97.5% quantile dashed)");
