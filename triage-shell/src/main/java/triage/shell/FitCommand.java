@@ -242,8 +242,10 @@ public final class FitCommand implements Callable<Integer> {
       provenance.put("referenceSample", reference);
       provenance.put("referenceSha256", m.sample(reference).sha256());
       store.addScores(version, scores, Output.JSON.writeValueAsString(doc));
+      // + 0.0 turns a −0.0 (a degenerate fit) into 0.0 for printing
       o.say("model %s: t = %.4f, %d parameters, %s after %d iterations (%d loss evaluations), %.1f s", version,
-          fit.testStatistic() + 0.0, model.parameterCount(), !fit.converged() ? "NOT converged (" + fit.stopReason() + ")"
+          fit.testStatistic() + 0.0, model.parameterCount(),
+          !fit.converged() ? "NOT converged (" + fit.stopReason() + ")"
               : fit.stopReason() == triage.core.ratio.StopReason.LINE_SEARCH_FAILED
               ? "converged (small projected gradient, where the line search could not improve further)"
               : "converged", fit.iterations(), fit.lossEvaluations(), fit.elapsedSeconds());

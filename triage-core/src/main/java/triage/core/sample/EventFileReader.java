@@ -277,7 +277,7 @@ public final class EventFileReader {
           }
         } catch (IOException e) {
           Throwable root = root(e);
-          if (root instanceof ZipException || root instanceof java.io.EOFException) {
+          if (brokenGzip(root)) {
             throw damagedGzip(file, line, root, rowsRead);
           }
           throw new InputException(file, line, 0, "cannot parse the row: " + rootMessage(e), e);
@@ -360,7 +360,7 @@ public final class EventFileReader {
     /** The error for a record starting on line {@code at} that the parser could not read. */
     private InputException unclosedQuote(UncheckedIOException e, long at) {
       Throwable root = root(e);
-      if (root instanceof ZipException || root instanceof java.io.EOFException) {
+      if (brokenGzip(root)) {
         return damagedGzip(file, at, root, rowsRead);
       }
       String why = rootMessage(e);
@@ -451,7 +451,7 @@ public final class EventFileReader {
     /** A failed read: damaged gzip data (a truncated or corrupt stream) said so, anything else as it is. */
     static InputException readFailure(Path file, Exception e, long rows) {
       Throwable root = root(e);
-      if (root instanceof ZipException || root instanceof java.io.EOFException) {
+      if (brokenGzip(root)) {
         return damagedGzip(file, 0, root, rows);
       }
       return new InputException(file, 0, 0, "cannot read: " + root.getMessage(), e);
@@ -459,6 +459,11 @@ public final class EventFileReader {
 
     private static String rootMessage(Throwable e) {
       return root(e).getMessage();
+    }
+
+    /** Whether a read failed because the gzip stream under it ends early or does not decompress. */
+    private static boolean brokenGzip(Throwable root) {
+      return root instanceof ZipException || root instanceof java.io.EOFException;
     }
 
     /** The innermost cause. */

@@ -391,6 +391,18 @@ class EventFileReaderTest {
         c.result.rejectedByKind());
   }
 
+  /** The header and 200,000 rows (ids 1, 2, ... followed by {@code rest}), gzip-compressed. */
+  private static byte[] gzipRows(String rest) throws IOException {
+    java.io.ByteArrayOutputStream bytes = new java.io.ByteArrayOutputStream();
+    try (OutputStream out = new GZIPOutputStream(bytes)) {
+      out.write(HEADER.getBytes(StandardCharsets.UTF_8));
+      for (int i = 1; i <= 200_000; i++) {
+        out.write(("\n" + i + rest).getBytes(StandardCharsets.UTF_8));
+      }
+    }
+    return bytes.toByteArray();
+  }
+
   @Test
   void damagedGzip() throws IOException {
     Path f = dir.resolve("broken.csv.gz");
@@ -411,27 +423,13 @@ class EventFileReaderTest {
     InputException t = assertThrows(InputException.class, () -> read(tiny, Role.REFERENCE, ReadOptions.strict()));
     assertTrue(t.getMessage().contains("damaged gzip data: the compressed stream ends early"), t.getMessage());
     // many rows, cut in the middle: the message says how far the reading got
-    bytes.reset();
-    try (OutputStream out = new GZIPOutputStream(bytes)) {
-      out.write(HEADER.getBytes(StandardCharsets.UTF_8));
-      for (int i = 1; i <= 200_000; i++) {
-        out.write(("\n" + i + ",7,10.5,3,A,0.5,0.6,0.4").getBytes(StandardCharsets.UTF_8));
-      }
-    }
-    byte[] many = bytes.toByteArray();
+    byte[] many = gzipRows(",7,10.5,3,A,0.5,0.6,0.4");
     Path cut = dir.resolve("cut.csv.gz");
     Files.write(cut, java.util.Arrays.copyOf(many, many.length - 100));
     InputException c = assertThrows(InputException.class, () -> read(cut, Role.REFERENCE, ReadOptions.strict()));
     assertTrue(c.getMessage().matches("(?s).*\\(after \\d+ data rows\\).*"), c.getMessage());
     // the same with quoted fields (read by the other parser)
-    bytes.reset();
-    try (OutputStream out = new GZIPOutputStream(bytes)) {
-      out.write(HEADER.getBytes(StandardCharsets.UTF_8));
-      for (int i = 1; i <= 200_000; i++) {
-        out.write(("\n" + i + ",7,\"10.5\",3,A,0.5,0.6,0.4").getBytes(StandardCharsets.UTF_8));
-      }
-    }
-    byte[] quoted = bytes.toByteArray();
+    byte[] quoted = gzipRows(",7,\"10.5\",3,A,0.5,0.6,0.4");
     Path cutQuoted = dir.resolve("cutq.csv.gz");
     Files.write(cutQuoted, java.util.Arrays.copyOf(quoted, quoted.length * 3 / 4));
     InputException q = assertThrows(InputException.class,
