@@ -392,8 +392,8 @@ public final class CalibrateCommand implements Callable<Integer> {
     double[] grid = clips.stream().mapToDouble(Double::doubleValue).sorted().distinct().toArray();
     int[] capGrid = caps.stream().mapToInt(Integer::intValue).toArray();
     for (double cl : grid) {
-      if (!(cl > 0) || !Double.isFinite(cl)) {
-        throw usage("--clips must be finite and positive, found " + cl);
+      if (!(cl >= FitSettings.MIN_CLIP) || !Double.isFinite(cl)) {
+        throw usage("--clips must be finite and at least " + FitSettings.MIN_CLIP + ", found " + cl);
       }
     }
     try {

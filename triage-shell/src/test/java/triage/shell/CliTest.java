@@ -367,6 +367,14 @@ class CliTest {
     Run twice = run("fit", "--index", index.toString(), "--layers", "5,5", "--layers", "3");
     assertEquals(ExitCodes.USAGE, twice.code(), twice.err());
     assertTrue(twice.err().contains("--layers is given more than once"), twice.err());
+    // A clip so small that the network is constant (t = 0 for any data) is a slip: a usage error, as is a clip
+    // grid that contains one.
+    Run tiny = run("fit", "--index", index.toString(), "--clip", "1e-320");
+    assertEquals(ExitCodes.USAGE, tiny.code(), tiny.err());
+    assertTrue(tiny.err().contains("clip must be finite and at least 1.0E-6"), tiny.err());
+    Run tinyGrid = run("calibrate", "--index", index.toString(), "--tune-clip", "--toys", "2", "--clips", "1,1e-9");
+    assertEquals(ExitCodes.USAGE, tinyGrid.code(), tinyGrid.err());
+    assertTrue(tinyGrid.err().contains("--clips must be finite and at least 1.0E-6, found 1.0E-9"), tinyGrid.err());
     // Options of the other optimiser are said to have no effect.
     Run idle = run("fit", "--index", index.toString(), "--layers", "2", "--max-iterations", "5", "--epochs", "7");
     assertEquals(0, idle.code(), idle.err());

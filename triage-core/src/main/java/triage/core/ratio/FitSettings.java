@@ -10,7 +10,7 @@ import java.util.List;
  * @param hiddenWidths     hidden-layer widths, each ≥ 1 (e.g. [5, 5])
  * @param activation       hidden activation
  * @param loss             training loss
- * @param clip             weight-clipping bound C &gt; 0: every weight and bias stays in [−C, C]
+ * @param clip             weight-clipping bound C ≥ {@link #MIN_CLIP}: every weight and bias stays in [−C, C]
  * @param seed             run seed; start r uses {@code SplitMix64.derive(seed, r)}
  * @param threads          worker threads ≥ 1 (does not change results)
  * @param optimiser        optimiser
@@ -36,6 +36,13 @@ public record FitSettings(List<Integer> hiddenWidths, Activation activation, Los
   /** Most threads. */
   public static final int MAX_THREADS = 1024;
 
+  /**
+   * Smallest clip. The output is a sum of at most (last width + 1) terms each within [−C, C] (activations lie in
+   * [−1, 1]), so |f| ≤ C·(width + 1): below this the network is 0 to the fit's resolution, t is 0 for any data, and
+   * products of parameters reach subnormal numbers. A value this small is a slip, not a regulariser.
+   */
+  public static final double MIN_CLIP = 1e-6;
+
   /** Validates every field. */
   public FitSettings {
     hiddenWidths = List.copyOf(hiddenWidths);
@@ -58,8 +65,9 @@ public record FitSettings(List<Integer> hiddenWidths, Activation activation, Los
       throw new IllegalArgumentException("the profiled optimiser needs the extended loss and at least one hidden "
           + "layer (its output layer is solved exactly); use lbfgs");
     }
-    if (!(clip > 0) || Double.isInfinite(clip)) {
-      throw new IllegalArgumentException("clip must be finite and > 0: " + clip);
+    if (!(clip >= MIN_CLIP) || Double.isInfinite(clip)) {
+      throw new IllegalArgumentException("clip must be finite and at least " + MIN_CLIP + " (below that the network's "
+          + "output is held within a few times the clip of 0, so t is 0 for any data): " + clip);
     }
     if (threads < 1 || threads > MAX_THREADS) {
       throw new IllegalArgumentException("threads must be between 1 and " + MAX_THREADS + ": " + threads);

@@ -44,6 +44,10 @@ class ValidationTest {
   void settingsValidateAndCopy() {
     FitSettings d = FitSettings.defaults();
     assertThrows(IllegalArgumentException.class, () -> d.withClip(0));
+    // a clip so small that the network is constant is a slip (it used to "converge" at once with t = 0)
+    assertThrows(IllegalArgumentException.class, () -> d.withClip(1e-320));
+    assertThrows(IllegalArgumentException.class, () -> d.withClip(Math.nextDown(FitSettings.MIN_CLIP)));
+    assertEquals(FitSettings.MIN_CLIP, d.withClip(FitSettings.MIN_CLIP).clip(), 0.0);
     assertThrows(IllegalArgumentException.class, () -> d.withThreads(0));
     assertThrows(IllegalArgumentException.class, () -> d.withHiddenWidths(List.of(5, 0)));
     assertThrows(IllegalArgumentException.class, () -> d.withRestarts(0));

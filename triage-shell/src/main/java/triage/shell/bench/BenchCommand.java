@@ -392,6 +392,10 @@ public final class BenchCommand implements Runnable {
 
     @Override
     public Integer call() throws IOException {
+      if (!(clip >= triage.core.ratio.FitSettings.MIN_CLIP) || !Double.isFinite(clip)) {
+        throw new CommandLine.ParameterException(new CommandLine(this), "--clip must be finite and at least "
+            + triage.core.ratio.FitSettings.MIN_CLIP + ", found " + clip);
+      }
       triage.core.ratio.OptimiserKind kind = switch (optimiser) {
         case "profiled" -> triage.core.ratio.OptimiserKind.PROFILED_LBFGS;
         case "lbfgs" -> triage.core.ratio.OptimiserKind.PROJECTED_LBFGS;
