@@ -11,7 +11,6 @@ import org.jline.reader.LineReader;
 import org.jline.reader.LineReaderBuilder;
 import org.jline.reader.UserInterruptException;
 import org.jline.reader.impl.DefaultParser;
-import org.jline.reader.impl.completer.StringsCompleter;
 import org.jline.terminal.Terminal;
 import org.jline.terminal.TerminalBuilder;
 import picocli.CommandLine;
@@ -68,19 +67,27 @@ public final class ConsoleCommand implements Callable<Integer> {
     Session session = new Session(index);
     java.util.function.IntSupplier previousWidth = Output.terminalWidth;
     Output.terminalWidth = () -> terminal.getType().startsWith("dumb") ? 0 : terminal.getWidth();
-    DefaultParser parser = new DefaultParser();
+    // The same word rule as scripts (Session.split): no backslash escapes; an open quote continues on the next line.
+    DefaultParser parser = new DefaultParser().escapeChars(new char[0]).eofOnUnclosedQuote(true);
+    Completions completer = new Completions(session, manifest);
     LineReader reader = LineReaderBuilder.builder().terminal(terminal).appName("triage").parser(parser)
-        .completer(new StringsCompleter(completions(manifest)))
+        .completer(completer)
         .variable(LineReader.HISTORY_FILE, index.resolve("console-history"))
+        // a line means what it says: no !-history expansion (a script would not do it), every line kept
+        .option(LineReader.Option.DISABLE_EVENT_EXPANSION, true)
+        .option(LineReader.Option.HISTORY_IGNORE_SPACE, false)
         .build();
     PrintWriter out = terminal.writer();
     // Ctrl-C while a command runs asks it to stop after its current step; while typing, the line reader
     // installs its own handler (clear the line) and restores this one afterwards.
+    String[] running = new String[1];
     terminal.handle(Terminal.Signal.INT, signal -> {
       if (!triage.core.Cancellation.requested()) {
         triage.core.Cancellation.request();
         out.println();
-        out.println("stopping after the current step ...");
+        out.println(UNSTOPPABLE.contains(running[0])
+            ? running[0] + " does not stop part way; it will finish (it writes its result whole)"
+            : "stopping after the current step ...");
         out.flush();
       }
     });
@@ -96,12 +103,21 @@ public final class ConsoleCommand implements Callable<Integer> {
       } catch (EndOfFileException e) {
         break;
       }
-      List<String> words = reader.getParsedLine() == null ? List.of() : reader.getParsedLine().words().stream()
-          .filter(w -> !w.isEmpty()).toList();
       triage.core.Cancellation.clear();
-      if (session.execute(line, words, out, out) < 0) {
+      List<String> words;
+      try {
+        words = Session.split(line);
+      } catch (triage.core.sample.InputException e) {
+        out.println("triage: " + e.getMessage());
+        continue;
+      }
+      running[0] = words.isEmpty() ? null : words.get(0);
+      int code = session.execute(line, words, out, out);
+      running[0] = null;
+      if (code < 0) {
         break;
       }
+      completer.refresh();
     }
     Output.terminalWidth = previousWidth;
     try {
@@ -111,6 +127,12 @@ public final class ConsoleCommand implements Callable<Integer> {
     }
     return ExitCodes.OK;
   }
+
+  /**
+   * Commands that do not look at Ctrl-C: they stream files and write their result whole (an ingest commits once), so
+   * the console says they will finish rather than that they stop.
+   */
+  static final java.util.Set<String> UNSTOPPABLE = java.util.Set.of("ingest", "generate", "followup");
 
   /** Words offered by tab completion. */
   static List<String> completions(Manifest m) {
@@ -135,5 +157,136 @@ public final class ConsoleCommand implements Callable<Integer> {
       words.add(model.version());
     }
     return new ArrayList<>(words);
+  }
+
+  /**
+   * Tab completion that follows the line: command names first; then the command's own options (not --index, which
+   * the session adds); after an option that takes a sample, a column or a model, those; {@code $} and the session's
+   * names; otherwise columns, scores, samples and the condition language's words. Inside an open quote (a
+   * condition being typed) the last word of the condition is completed and the quote is left open. The index's
+   * words are read again after every command, so a model fitted in the session is offered.
+   */
+  static final class Completions implements org.jline.reader.Completer {
+    /** Options followed by a sample name. */
+    private static final java.util.Set<String> SAMPLE_OPTIONS = java.util.Set.of("--sample", "--samples");
+    /** Options followed by column names. */
+    private static final java.util.Set<String> COLUMN_OPTIONS = java.util.Set.of("--column", "--x", "--y", "--by",
+        "--features", "--feature", "--order-by");
+    /** The session (for its names). */
+    private final Session session;
+    /** Columns, scores and condition words. */
+    private volatile List<String> columns;
+    /** Sample names. */
+    private volatile List<String> samples;
+    /** Model versions. */
+    private volatile List<String> models;
+
+    Completions(Session session, Manifest manifest) {
+      this.session = session;
+      set(manifest);
+    }
+
+    private void set(Manifest m) {
+      TreeSet<String> cols = new TreeSet<>(List.of("AND", "OR", "NOT", "BETWEEN", "IN", "abs", "min", "max", "log",
+          "sqrt"));
+      for (Manifest.Column c : m.columns()) {
+        cols.add(c.name());
+      }
+      List<String> mods = new ArrayList<>();
+      for (Manifest.Model model : m.models()) {
+        cols.add("score:" + model.version());
+        mods.add(model.version());
+      }
+      columns = List.copyOf(cols);
+      samples = m.samples().stream().map(Manifest.Sample::name).toList();
+      models = List.copyOf(mods);
+    }
+
+    /** Reads the index's words again (after a command that may have added a model). */
+    void refresh() {
+      try (EventStore store = EventStore.open(session.index())) {
+        set(store.manifest());
+      } catch (java.io.IOException | RuntimeException e) {
+        // keep the previous words: completion must never break the console
+      }
+    }
+
+    @Override
+    public void complete(LineReader reader, org.jline.reader.ParsedLine line, List<org.jline.reader.Candidate> out) {
+      List<String> words = line.words();
+      int at = line.wordIndex();
+      String word = line.word().substring(0, Math.min(line.wordCursor(), line.word().length()));
+      if (at == 0) {
+        TreeSet<String> first = new TreeSet<>(Main.commandLine().getSubcommands().keySet());
+        first.remove("console");
+        first.addAll(Session.SESSION_WORDS);
+        first.forEach(w -> out.add(new org.jline.reader.Candidate(w)));
+        return;
+      }
+      String command = words.get(0);
+      String previous = at >= 1 ? words.get(at - 1) : "";
+      boolean inQuote = openQuote(line.line(), line.cursor());
+      List<String> offer = new ArrayList<>();
+      if (inQuote) {
+        // a condition being typed: complete its last word, keep the quote open
+        int cut = word.length();
+        while (cut > 0 && (Character.isLetterOrDigit(word.charAt(cut - 1))
+            || "_:$".indexOf(word.charAt(cut - 1)) >= 0)) {
+          cut--;
+        }
+        final int from = cut;
+        String head = word.substring(0, from);
+        for (String w : conditionWords()) {
+          offer.add(head + w);
+        }
+        offer.forEach(w -> out.add(new org.jline.reader.Candidate(w, w.substring(from), null, null, null, null,
+            false)));
+        return;
+      }
+      if (SAMPLE_OPTIONS.contains(previous)) {
+        offer.addAll(samples);
+      } else if (previous.equals("--model")) {
+        offer.addAll(models);
+      } else if (COLUMN_OPTIONS.contains(previous)) {
+        offer.addAll(columns.stream().filter(c -> !c.equals(c.toUpperCase(java.util.Locale.ROOT))).toList());
+      } else if (word.startsWith("-")) {
+        CommandLine sub = Main.commandLine().getSubcommands().get(command);
+        if (sub != null) {
+          for (CommandLine.Model.OptionSpec o : sub.getCommandSpec().options()) {
+            for (String n : o.names()) {
+              if (n.startsWith("--") && !n.equals("--index")) {
+                offer.add(n);
+              }
+            }
+          }
+        }
+      } else {
+        offer.addAll(conditionWords());
+        offer.addAll(samples);
+      }
+      offer.forEach(w -> out.add(new org.jline.reader.Candidate(w)));
+    }
+
+    private List<String> conditionWords() {
+      List<String> all = new ArrayList<>(columns);
+      for (String n : session.names().keySet()) {
+        all.add("$" + n);
+      }
+      return all;
+    }
+
+    /** Whether the cursor is inside a quote opened earlier on the line. */
+    static boolean openQuote(String line, int cursor) {
+      char open = 0;
+      for (int i = 0; i < Math.min(cursor, line.length()); i++) {
+        char c = line.charAt(i);
+        if (open == 0 && (c == '"' || c == '\'')) {
+          open = c;
+        } else if (c == open) {
+          open = 0;
+        }
+      }
+      return open != 0;
+    }
   }
 }

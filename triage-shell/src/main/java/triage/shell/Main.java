@@ -18,7 +18,20 @@ public final class Main {
   public static void main(String[] args) {
     // Lucene logs a hint about the incubating vector module at start; it is not the user's concern.
     LUCENE_VECTOR_LOG.setLevel(java.util.logging.Level.SEVERE);
-    System.exit(run(args, new PrintWriter(System.out, true), new PrintWriter(System.err, true)));
+    // Always UTF-8, whatever the locale: JSON must be (RFC 8259), and without a UTF-8 locale (cron jobs, bare
+    // containers) the JVM would write every Σ, √, ± and non-ASCII category value as '?'.
+    System.setOut(new java.io.PrintStream(new java.io.BufferedOutputStream(new java.io.FileOutputStream(
+        java.io.FileDescriptor.out), 1 << 16), true,
+        java.nio.charset.StandardCharsets.UTF_8));
+    System.setErr(new java.io.PrintStream(new java.io.BufferedOutputStream(new java.io.FileOutputStream(
+        java.io.FileDescriptor.err), 1 << 16), true,
+        java.nio.charset.StandardCharsets.UTF_8));
+    PrintWriter out = new PrintWriter(System.out, true);
+    PrintWriter err = new PrintWriter(System.err, true);
+    int code = run(args, out, err);
+    out.flush();
+    err.flush();
+    System.exit(code);
   }
 
   /** Runs triage with given output streams and returns the exit code (used by tests and the console). */

@@ -87,4 +87,112 @@ class ConsoleTest {
         ExitCodes.INPUT));
     org.junit.jupiter.api.Assertions.assertEquals(ExitCodes.USAGE, RunCommand.worse(0, ExitCodes.USAGE));
   }
+
+  /** Words: no backslash escapes, empty quoted words kept, an open quote refused; the same in console and script. */
+  @Test
+  void linesSplitIntoWordsAsWritten() {
+    assertEquals(java.util.List.of("select", "--where", "sector = 'a\\b'"),
+        Session.split("select --where \"sector = 'a\\b'\""));
+    assertEquals(java.util.List.of("export", "--out", "back\\slash.csv"),
+        Session.split("export --out back\\slash.csv"));
+    assertEquals(java.util.List.of("select", "--where", ""), Session.split("select --where \"\""));
+    assertEquals(java.util.List.of(), Session.split("   "));
+    var open = org.junit.jupiter.api.Assertions.assertThrows(triage.core.sample.InputException.class,
+        () -> Session.split("select --where \"m > 700"));
+    assertTrue(open.getMessage().contains("a quote is left open"), open.getMessage());
+  }
+
+  /** $NAME stands for a condition only in conditions, and not inside their quoted strings. */
+  @Test
+  void namesExpandOnlyInConditions() throws IOException {
+    Session s = new Session(index);
+    java.io.StringWriter text = new java.io.StringWriter();
+    java.io.PrintWriter w = new java.io.PrintWriter(text);
+    assertEquals(0, s.execute("name low = \"m < 110\"", Session.split("name low = \"m < 110\""), w, w));
+    // the quotes around a whole condition are not part of it
+    assertEquals("m < 110", s.names().get("low"));
+    assertEquals("(m < 110) AND 'x$low' = 'y'", s.expand("$low AND 'x$low' = 'y'"));
+    // a condition is checked when it is named: an unknown column is refused then, not when used
+    assertEquals(ExitCodes.INPUT, s.execute("name bad = mass >", Session.split("name bad = mass >"), w, w));
+    assertTrue(!s.names().containsKey("bad"));
+    // a name that $ could not read back is refused
+    assertEquals(ExitCodes.USAGE, s.execute("name my-bump = m > 1", Session.split("name my-bump = m > 1"), w, w));
+    w.flush();
+    assertTrue(text.toString().contains("'my-bump' cannot be a name"), text.toString());
+    // --where=... is expanded like --where ...; a path with a dollar sign is left alone
+    Path out = dir.resolve("a$low.csv");
+    String line = "export --sample observed --where=$low --out " + out;
+    assertEquals(0, s.execute(line, Session.split(line), w, w), text.toString());
+    assertTrue(Files.exists(out), text.toString());
+    // --index=DIR is the session's index given again: not added a second time
+    String info = "info --index=" + index;
+    assertEquals(0, s.execute(info, Session.split(info), w, w), text.toString());
+  }
+
+  @Test
+  void consoleHelpListsTheSessionWordsAndANestedConsoleIsRefused() throws IOException {
+    String shown = console("help\nconsole\nquit\n");
+    assertTrue(shown.contains("name NAME = CONDITION"), shown);
+    assertTrue(shown.contains("quit, exit, Ctrl-D"), shown);
+    assertTrue(shown.contains("  select "), shown);
+    assertTrue(shown.contains("already in a console"), shown);
+  }
+
+  /** Completion follows the line: a command's own options, samples after --sample, new models, open quotes. */
+  @Test
+  void completionFollowsTheLine() throws IOException {
+    Session session = new Session(index);
+    ConsoleCommand.Completions c;
+    try (var store = triage.index.EventStore.open(index)) {
+      c = new ConsoleCommand.Completions(session, store.manifest());
+    }
+    assertTrue(values(c, "select --").contains("--where"));
+    assertTrue(!values(c, "select --").contains("--index"));
+    assertTrue(!values(c, "select --").contains("--spec"), values(c, "select --").toString());
+    assertEquals(java.util.Set.of("observed", "reference"), java.util.Set.copyOf(values(c, "events --sample ")));
+    // inside an open quote: the condition's last word, the quote left open
+    var inQuote = candidates(c, "select --where \"m > 1 AND p");
+    assertTrue(inQuote.stream().anyMatch(k -> k.value().equals("m > 1 AND pt") && !k.complete()),
+        inQuote.stream().map(org.jline.reader.Candidate::value).toList().toString());
+    assertTrue(!values(c, "select --where ").contains("score:m1"));
+    assertEquals(0, CliTest.run("fit", "--index", index.toString(), "--layers", "2", "--max-iterations", "5",
+        "--version-name", "m1").code());
+    c.refresh();
+    assertTrue(values(c, "select --where ").contains("score:m1"));
+    session.names().put("high", "m > 100");
+    assertTrue(values(c, "select --where ").contains("$high"));
+  }
+
+  private static java.util.List<org.jline.reader.Candidate> candidates(ConsoleCommand.Completions c, String line) {
+    var parser = new org.jline.reader.impl.DefaultParser().escapeChars(new char[0]);
+    var parsed = parser.parse(line, line.length(), org.jline.reader.Parser.ParseContext.COMPLETE);
+    java.util.List<org.jline.reader.Candidate> out = new java.util.ArrayList<>();
+    c.complete(null, parsed, out);
+    return out;
+  }
+
+  private static java.util.List<String> values(ConsoleCommand.Completions c, String line) {
+    return candidates(c, line).stream().map(org.jline.reader.Candidate::value).toList();
+  }
+
+  /** Scripts: a byte-order mark, a quote left open, quit part way, and a missing index. */
+  @Test
+  void scriptsTolerateAMarkReportOpenQuotesAndSayWhereTheyStop() throws IOException {
+    Path bom = dir.resolve("bom.triage");
+    Files.writeString(bom, "\uFEFF# starts with a byte-order mark\ninfo\n");
+    CliTest.Run b = CliTest.run("run", "--index", index.toString(), bom.toString());
+    assertEquals(0, b.code(), b.err());
+    Path open = dir.resolve("open.triage");
+    Files.writeString(open, "select --where \"m > 100\nquit\ninfo\n");
+    CliTest.Run o = CliTest.run("run", "--index", index.toString(), "--json", "--keep-going", open.toString());
+    assertEquals(ExitCodes.INPUT, o.code(), o.err());
+    assertTrue(o.err().contains("a quote is left open"), o.err());
+    assertTrue(o.err().contains("open.triage:2: 'quit' ends the script here; 1 later line(s) not run"), o.err());
+    var json = new com.fasterxml.jackson.databind.ObjectMapper().readTree(o.out());
+    assertEquals(2, json.get("steps").size(), o.out());
+    assertEquals(ExitCodes.INPUT, json.get("steps").get(0).get("exitCode").asInt());
+    CliTest.Run none = CliTest.run("run", "--index", dir.resolve("nothing").toString(), bom.toString());
+    assertEquals(ExitCodes.INPUT, none.code(), none.err());
+    assertTrue(!none.out().contains("triage> info"), none.out());
+  }
 }
