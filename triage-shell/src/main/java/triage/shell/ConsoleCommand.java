@@ -174,7 +174,10 @@ public final class ConsoleCommand implements Callable<Integer> {
         "--features", "--feature", "--order-by");
     /** The session (for its names). */
     private final Session session;
-    /** Columns, scores and condition words. */
+    /** The condition language's own words. */
+    private static final List<String> LANGUAGE = List.of("AND", "OR", "NOT", "BETWEEN", "IN", "abs", "min", "max",
+        "log", "sqrt");
+    /** Columns and scores. */
     private volatile List<String> columns;
     /** Sample names. */
     private volatile List<String> samples;
@@ -187,8 +190,7 @@ public final class ConsoleCommand implements Callable<Integer> {
     }
 
     private void set(Manifest m) {
-      TreeSet<String> cols = new TreeSet<>(List.of("AND", "OR", "NOT", "BETWEEN", "IN", "abs", "min", "max", "log",
-          "sqrt"));
+      TreeSet<String> cols = new TreeSet<>();
       for (Manifest.Column c : m.columns()) {
         cols.add(c.name());
       }
@@ -248,7 +250,7 @@ public final class ConsoleCommand implements Callable<Integer> {
       } else if (previous.equals("--model")) {
         offer.addAll(models);
       } else if (COLUMN_OPTIONS.contains(previous)) {
-        offer.addAll(columns.stream().filter(c -> !c.equals(c.toUpperCase(java.util.Locale.ROOT))).toList());
+        offer.addAll(columns);
       } else if (word.startsWith("-")) {
         CommandLine sub = Main.commandLine().getSubcommands().get(command);
         if (sub != null) {
@@ -269,6 +271,7 @@ public final class ConsoleCommand implements Callable<Integer> {
 
     private List<String> conditionWords() {
       List<String> all = new ArrayList<>(columns);
+      all.addAll(LANGUAGE);
       for (String n : session.names().keySet()) {
         all.add("$" + n);
       }

@@ -150,6 +150,8 @@ class ConsoleTest {
     assertTrue(!values(c, "select --").contains("--index"));
     assertTrue(!values(c, "select --").contains("--spec"), values(c, "select --").toString());
     assertEquals(java.util.Set.of("observed", "reference"), java.util.Set.copyOf(values(c, "events --sample ")));
+    // after --column: columns only, not the language's functions (min, max)
+    assertEquals(java.util.Set.of("m", "pt", "run", "event"), java.util.Set.copyOf(values(c, "hist --column ")));
     // inside an open quote: the condition's last word, the quote left open
     var inQuote = candidates(c, "select --where \"m > 1 AND p");
     assertTrue(inQuote.stream().anyMatch(k -> k.value().equals("m > 1 AND pt") && !k.complete()),
