@@ -119,8 +119,9 @@ public final class FollowupCommand implements Callable<Integer> {
       throw new InputException(inputs.specFile, "needs exactly one followup-reference and one followup-observed "
           + "sample (found " + refs.size() + " and " + obs.size() + ")");
     }
-    ReadOptions read = allowNegativeWeights ? ReadOptions.strict().with(WeightPolicy.ANY_FINITE)
-        : ReadOptions.strict();
+    // followup has no --on-bad-row: the first bad row stops it, and the message must not suggest skipping
+    ReadOptions read = (allowNegativeWeights ? ReadOptions.strict().with(WeightPolicy.ANY_FINITE)
+        : ReadOptions.strict()).withoutSkipSuggestion();
     o.note("reading %s", obs.get(0).file());
     RegionApplier.Yield n = RegionApplier.apply(region, follow, obs.get(0), read);
     long overlap = region.discoveryIds().overlap(n.ids());

@@ -122,6 +122,42 @@ public final class EventFileReader {
         + (rows > 0 ? " (after " + rows + " data rows)" : "") + "; expected a whole gzip file", e);
   }
 
+  /**
+   * The column names of a sample file's header line (plain or gzip-compressed, quotes allowed), without reading on:
+   * for a command that must choose a column before reading the file.
+   *
+   * @throws InputException for a missing or empty file, or a header that cannot be read
+   */
+  public static List<String> header(Path file) throws IOException {
+    if (!Files.isRegularFile(file)) {
+      throw new InputException(file, Files.exists(file) ? "not a regular file" : "file not found");
+    }
+    boolean compressed;
+    try (InputStream head = Files.newInputStream(file)) {
+      compressed = head.read() == 0x1f && head.read() == 0x8b;
+    }
+    CSVFormat format = CSVFormat.DEFAULT.builder().setDelimiter(delimiterFor(file)).setQuote('"').get();
+    try (InputStream raw = new BufferedInputStream(Files.newInputStream(file));
+        InputStream in = compressed ? new GZIPInputStream(raw) : raw;
+        CSVParser parser = CSVParser.builder().setReader(new InputStreamReader(in, StandardCharsets.UTF_8))
+            .setFormat(format).get()) {
+      Iterator<CSVRecord> it = parser.iterator();
+      if (!it.hasNext()) {
+        throw new InputException(file, 1, 0, "empty file: expected a header line naming the columns", null);
+      }
+      List<String> names = new ArrayList<>();
+      for (String name : it.next().toList()) {
+        name = name.strip();
+        names.add(names.isEmpty() && name.startsWith("\uFEFF") ? name.substring(1) : name);
+      }
+      return names;
+    } catch (ZipException | java.io.EOFException e) {
+      throw damagedGzip(file, 1, e, 0);
+    } catch (UncheckedIOException e) {
+      throw new InputException(file, 1, 0, "cannot read the header line: " + e.getCause().getMessage(), e);
+    }
+  }
+
   /** Tab for {@code .tsv}, {@code .tab} (optionally {@code .gz}), else comma. */
   static char delimiterFor(Path file) {
     String name = file.getFileName().toString().toLowerCase(java.util.Locale.ROOT);
@@ -636,7 +672,7 @@ public final class EventFileReader {
       if (options.badRows() == BadRowPolicy.FAIL) {
         throw new InputException(file, problem.line(), problem.column(), problem.message().substring(
             InputException.place(file, problem.line(), problem.column()).length())
-            + " (to set bad rows aside instead, use --on-bad-row skip)", null);
+            + (options.suggestSkip() ? " (to set bad rows aside instead, use --on-bad-row skip)" : ""), null);
       }
       rejects.reject(problem, fields.toList());
     }

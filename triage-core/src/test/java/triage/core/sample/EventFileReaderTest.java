@@ -309,6 +309,38 @@ class EventFileReaderTest {
     assertTrue(e.getMessage().contains("--allow-negative-weights"), e.getMessage());
   }
 
+  /**
+   * The stop message suggests {@code --on-bad-row skip} only to commands that have it: a command without it (the
+   * follow-up) reads with {@link ReadOptions#withoutSkipSuggestion()} and is told only of the weight option.
+   */
+  @Test
+  void theSkipSuggestionIsLeftOutForCommandsWithoutIt() throws IOException {
+    String text = HEADER + "\n1,7,10.5,3,A,-0.5,-0.4,-0.6\n";
+    assertTrue(fails(text, Role.REFERENCE).getMessage().contains("--on-bad-row skip"));
+    Path f = write("neg.csv", text);
+    InputException e = assertThrows(InputException.class, () -> read(f, Role.REFERENCE,
+        ReadOptions.strict().withoutSkipSuggestion()));
+    assertPlace(e, "neg.csv", 2, 6);
+    assertTrue(e.getMessage().contains("use --allow-negative-weights"), e.getMessage());
+    assertFalse(e.getMessage().contains("--on-bad-row"), e.getMessage());
+  }
+
+  /** The header alone, plain, quoted or gzip-compressed, with a byte-order mark; nothing for an empty file. */
+  @Test
+  void headerIsReadWithoutTheRows() throws IOException {
+    assertEquals(List.of("event", "m", "w"), EventFileReader.header(write("h.csv", "\uFEFFevent, m ,w\n1,2,x\n")));
+    assertEquals(List.of("event", "m,n"), EventFileReader.header(write("q.csv", "event,\"m,n\"\n1,2\n")));
+    assertEquals(List.of("event", "m"), EventFileReader.header(write("t.tsv", "event\tm\n")));
+    Path gz = dir.resolve("h.csv.gz");
+    try (OutputStream out = new GZIPOutputStream(Files.newOutputStream(gz))) {
+      out.write("event,w\n1,1\n".getBytes(StandardCharsets.UTF_8));
+    }
+    assertEquals(List.of("event", "w"), EventFileReader.header(gz));
+    assertPlace(assertThrows(InputException.class, () -> EventFileReader.header(write("e.csv", ""))), "e.csv", 1, 0);
+    assertTrue(assertThrows(InputException.class, () -> EventFileReader.header(dir.resolve("none.csv")))
+        .getMessage().contains("file not found"));
+  }
+
   @Test
   void negativeWeightIsRefusedByDefaultAndCountedWhenAllowed() throws IOException {
     String text = HEADER + "\n1,7,10.5,3,A,-0.5,-0.4,-0.6\n2,7,10.5,3,A,0,0,0\n3,7,10.5,3,A,2,2,2\n";
