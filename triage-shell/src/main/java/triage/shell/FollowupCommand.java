@@ -1,6 +1,7 @@
 package triage.shell;
 
 import java.nio.file.Path;
+import java.util.ArrayList;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
@@ -14,12 +15,16 @@ import triage.core.provenance.ToolVersion;
 import triage.core.region.FollowUp;
 import triage.core.region.Region;
 import triage.core.region.RegionApplier;
+import triage.core.region.Stress;
+import triage.core.sample.EventFileReader;
 import triage.core.sample.InputException;
 import triage.core.sample.ReadOptions;
 import triage.core.sample.Role;
 import triage.core.sample.SampleSource;
 import triage.core.sample.SampleSpec;
+import triage.core.sample.ScaleShift;
 import triage.core.sample.WeightPolicy;
+import triage.core.select.Where;
 
 /** {@code triage followup}: a frozen region on independent data. */
 @Command(name = "followup", mixinStandardHelpOptions = true, versionProvider = VersionProvider.class,
@@ -27,7 +32,9 @@ import triage.core.sample.WeightPolicy;
         + "index): observed n, expected b with its MC statistical error and each systematic variation, Z_Bi and "
         + "the Asimov significance with the background uncertainty, the one-sided p, the 95%% CL CLs upper limit "
         + "on the signal count, the compatibility with the discovery, and the growth needed for an expected 5σ.",
-        "Refuses observed events whose ids appear among the discovery's, unless --allow-overlap."},
+        "Refuses observed events whose ids appear among the discovery's, unless --allow-overlap; warns when an input "
+            + "is a discovery input file (the same SHA-256). The systematic error includes the weight variations "
+            + "and the scale shifts the region records (features scaled by 1 ± δ, re-scored by the frozen model)."},
     footer = ExitCodes.FOOTER, sortOptions = false)
 public final class FollowupCommand implements Callable<Integer> {
   /** Filled by picocli. */
@@ -65,7 +72,8 @@ public final class FollowupCommand implements Callable<Integer> {
     Path observed;
 
     /** Weight column. */
-    @Option(names = "--weight", paramLabel = "COL", description = "Weight column of the reference file.")
+    @Option(names = "--weight", paramLabel = "COL", description = "Weight column of the reference file (default: "
+        + "the discovery reference's weight column, as the region file records it).")
     String weight;
   }
 
@@ -87,31 +95,63 @@ public final class FollowupCommand implements Callable<Integer> {
   public Integer call() throws Exception {
     Output o = new Output(spec, json);
     Region region = Region.read(regionFile);
+    List<String> cautions = new ArrayList<>(SelectCommand.CAUTIONS);
+    String discoveryWeight = discoveryWeight(region);
+    boolean discoveryWeighted = discoveryWeight != null || weightedYields(region.discovery());
     SampleSpec follow;
+    List<ScaleShift> scales;
+    String weightNote = null;
     if (inputs.specFile != null) {
       SampleSpec s = SampleSpec.read(inputs.specFile);
       if (!s.columns().features().equals(region.columns().features())) {
         throw new InputException(inputs.specFile, "its features " + s.columns().features()
             + " differ from the region's " + region.columns().features());
       }
-      List<SampleSource> chosen = new java.util.ArrayList<>(s.samples(Role.FOLLOWUP_REFERENCE));
+      List<SampleSource> chosen = new ArrayList<>(s.samples(Role.FOLLOWUP_REFERENCE));
       chosen.addAll(s.samples(Role.FOLLOWUP_OBSERVED));
       if (s.samples(Role.FOLLOWUP_REFERENCE).size() != 1 || s.samples(Role.FOLLOWUP_OBSERVED).size() != 1) {
         throw new InputException(inputs.specFile, "needs exactly one sample with role followup-reference and one "
             + "with role followup-observed (found " + s.samples(Role.FOLLOWUP_REFERENCE).size() + " and "
             + s.samples(Role.FOLLOWUP_OBSERVED).size() + ")");
       }
-      follow = new SampleSpec(SampleSpec.FORMAT, s.columns(), s.variations(), chosen);
+      if (discoveryWeighted && s.samples(Role.FOLLOWUP_REFERENCE).get(0).weight() == null) {
+        throw new InputException(inputs.specFile, "its followup-reference sample has no 'weight', but the region "
+            + regionFile + " was frozen from a weighted reference" + (discoveryWeight == null ? ""
+            : " (weight column '" + discoveryWeight + "')") + ": name the follow-up reference's weight column; read "
+            + "unweighted, its event count would be compared with weighted yields and variations");
+      }
+      follow = new SampleSpec(SampleSpec.FORMAT, s.columns(), s.variations(), s.scales(), chosen);
+      scales = s.scales();
     } else {
+      String weight = inputs.files.weight;
+      if (weight == null && discoveryWeighted) {
+        if (discoveryWeight == null) {
+          throw new InputException(regionFile, "the region was frozen from a weighted reference (its discovery "
+              + "yield " + region.discovery().expected() + " has an MC error of "
+              + region.discovery().expectedStatError() + ", not its square root as for events of weight one), and "
+              + "the file does not record the weight column: give the follow-up reference's weight column with "
+              + "--weight COL");
+        }
+        if (!EventFileReader.header(inputs.files.reference).contains(discoveryWeight)) {
+          throw new InputException(inputs.files.reference, 1, 0, "has no column '" + discoveryWeight + "', the "
+              + "weight column of the discovery reference the region " + regionFile + " was frozen from: give this "
+              + "file's weight column with --weight COL (read unweighted, its event count would be compared with "
+              + "weighted yields and variations)", null);
+        }
+        weight = discoveryWeight;
+        weightNote = "reference weights from column '" + weight + "', the discovery reference's weight column "
+            + "(recorded in the region file; --weight chooses another)";
+      }
       try {
         follow = new SampleSpec(SampleSpec.FORMAT, region.columns(), region.variations(), List.of(
             new SampleSource("followup-reference", Role.FOLLOWUP_REFERENCE, inputs.files.reference.toString(),
-                inputs.files.weight),
+                weight),
             new SampleSource("followup-observed", Role.FOLLOWUP_OBSERVED, inputs.files.observed.toString(),
                 null)));
       } catch (IllegalArgumentException e) {
         throw new CommandLine.ParameterException(spec.commandLine(), e.getMessage());
       }
+      scales = region.scales() == null ? List.of() : region.scales();
     }
     List<SampleSource> refs = follow.samples(Role.FOLLOWUP_REFERENCE);
     List<SampleSource> obs = follow.samples(Role.FOLLOWUP_OBSERVED);
@@ -131,18 +171,62 @@ public final class FollowupCommand implements Callable<Integer> {
           + "(use --allow-overlap to run anyway; it is recorded in the output)");
     }
     o.note("reading %s", refs.get(0).file());
-    RegionApplier.Yield b = RegionApplier.apply(region, follow, refs.get(0), read);
+    RegionApplier.Yield b = RegionApplier.apply(region, follow, refs.get(0), read, scales);
+    List<Map<String, Object>> reused = new ArrayList<>();
+    reused(region, obs.get(0), n, reused);
+    reused(region, refs.get(0), b, reused);
+    List<String> notIncluded = null;
+    if (region.scales() != null) {
+      notIncluded = new ArrayList<>();
+      for (ScaleShift shift : region.scales()) {
+        if (!b.scales().containsKey(shift.name())) {
+          notIncluded.add(shift.name());
+        }
+      }
+    }
     Region.Discovery d = region.discovery();
     FollowUp f = FollowUp.compute(n.events(), b.sumOfWeights(), Math.sqrt(b.sumOfSquaredWeights()), b.variations(),
-        d.observed(), d.expected(), d.expectedStatError());
+        b.scales(), d.observed(), d.expected(), d.expectedStatError());
     o.say("region '%s' (%s)", region.name(), region.where());
+    if (weightNote != null) {
+      o.say("note: %s", weightNote);
+    }
     if (overlap > 0) {
       o.say("WARNING: %d observed ids overlap the discovery sample; --allow-overlap was given", overlap);
+    }
+    for (Map<String, Object> r : reused) {
+      String caution = r.get("file") + " is the discovery's " + r.get("discoveryRole") + " file (the same SHA-256)"
+          + (Role.FOLLOWUP_REFERENCE.label().equals(r.get("role")) ? ": the expected yield and its MC statistical "
+          + "error are not independent of the discovery, whose region was chosen where this reference may "
+          + "fluctuate low; use a separately simulated reference" : ": the follow-up reuses the discovery events");
+      o.say("WARNING: %s", caution);
+      cautions.add(caution + ".");
     }
     o.say("follow-up  observed %d, expected %.4g ± %.2g (stat.) ± %.2g (syst.) = ± %.2g", f.observed(),
         f.expected(), f.statError(), f.systError(), f.totalError());
     for (var v : f.variations().entrySet()) {
       o.say("  %-16s expected up %.4g, down %.4g", v.getKey(), v.getValue()[0], v.getValue()[1]);
+    }
+    for (ScaleShift shift : scales) {
+      double[] v = f.scales().get(shift.name());
+      o.say("  %-16s expected up %.4g, down %.4g (scale: %s × (1 ± %.3g))", shift.name(), v[0], v[1],
+          String.join(", ", shift.features()), shift.relative());
+    }
+    if (!scales.isEmpty() && usesExternalScore(region)) {
+      String caution = "the external score column is held fixed under the scale shifts (it cannot be recomputed)";
+      o.say("note: %s", caution);
+      cautions.add("In the follow-up, " + caution + ".");
+    }
+    if (notIncluded == null) {
+      String caution = "the region file does not record the discovery's scale systematics (it was written before "
+          + "they were recorded): any the discovery spec declared are not included in the systematic error";
+      o.say("caution: %s", caution);
+      cautions.add("In the follow-up, " + caution + ".");
+    } else if (!notIncluded.isEmpty()) {
+      String caution = "the discovery's scale systematics " + String.join(", ", notIncluded) + " are not included "
+          + "in the systematic error (the follow-up spec does not declare them)";
+      o.say("caution: %s", caution);
+      cautions.add("In the follow-up, " + caution + ".");
     }
     if (f.expected() > 0) {
       o.say("significance  Z_Bi = %.2f (one-sided p %s); Asimov Z with σ_b at s = n − b: %.2f", f.zBi(),
@@ -167,9 +251,25 @@ public final class FollowupCommand implements Callable<Integer> {
       o.say("sensitivity   the follow-up sample would have to grow by %.3g× for an expected 5σ for the predicted "
           + "excess (which carries the discovery's upward bias)", f.growthFor5Sigma());
     }
-    o.say("note: a p-value is not the probability that a signal is real; the discovery significance is biased "
-        + "upwards, this one is not (the region was frozen before these data were read). Defer to your "
-        + "collaboration's statistical review.");
+    boolean independent = overlap == 0 && reused.isEmpty();
+    if (independent) {
+      o.say("note: a p-value is not the probability that a signal is real; the discovery significance is biased "
+          + "upwards, this one is not (the region was frozen before these data were read). Defer to your "
+          + "collaboration's statistical review.");
+    } else {
+      List<String> why = new ArrayList<>();
+      if (overlap > 0) {
+        why.add(overlap + " observed events of the discovery sample");
+      }
+      for (Map<String, Object> r : reused) {
+        why.add("the discovery's " + r.get("discoveryRole") + " file");
+      }
+      String caution = "This follow-up reuses discovery data (" + String.join("; ", why) + "): it is not "
+          + "independent of the discovery, and its significance is biased upwards like the discovery's.";
+      o.say("note: a p-value is not the probability that a signal is real; %s%s Defer to your collaboration's "
+          + "statistical review.", Character.toLowerCase(caution.charAt(0)), caution.substring(1));
+      cautions.add(caution);
+    }
     Map<String, Object> result = new LinkedHashMap<>();
     result.put("command", "followup");
     result.put("tool", "triage " + ToolVersion.get());
@@ -178,12 +278,72 @@ public final class FollowupCommand implements Callable<Integer> {
     result.put("inputs", List.of(Map.of("file", obs.get(0).file(), "sha256", n.read().sha256(), "rowsRead",
         n.read().rowsRead()), Map.of("file", refs.get(0).file(), "sha256", b.read().sha256(), "rowsRead",
         b.read().rowsRead())));
+    result.put("referenceWeight", refs.get(0).weight());
     result.put("overlappingIds", overlap);
     result.put("overlapAllowed", allowOverlap);
+    result.put("reusedDiscoveryInputs", reused);
+    result.put("independent", independent);
+    result.put("scales", scales);
+    result.put("scalesNotIncluded", notIncluded);
     result.put("result", f);
     result.put("discovery", d);
-    result.put("cautions", SelectCommand.CAUTIONS);
+    result.put("cautions", cautions);
     o.result(result);
     return ExitCodes.OK;
+  }
+
+  /** The discovery reference's weight column as the region records it, or null (unweighted, or not recorded). */
+  static String discoveryWeight(Region region) {
+    if (region.provenance() == null || region.provenance().inputs() == null) {
+      return null;
+    }
+    for (Region.Input in : region.provenance().inputs()) {
+      if (in != null && Role.REFERENCE.label().equals(in.role()) && in.weight() != null) {
+        return in.weight();
+      }
+    }
+    return null;
+  }
+
+  /**
+   * Whether the discovery yields show a weighted reference: with events of weight one, b_d = Σw = N and its MC
+   * error √Σw² = √N, so σ² = b_d up to rounding; any other weights make them differ (b_d = 0 tells nothing).
+   */
+  static boolean weightedYields(Region.Discovery d) {
+    double s2 = d.expectedStatError() * d.expectedStatError();
+    return Math.abs(s2 - d.expected()) > 1e-9 * Math.max(1, Math.abs(d.expected()));
+  }
+
+  /** Adds the follow-up input to {@code out} when its SHA-256 is that of a discovery input (reference, observed). */
+  private static void reused(Region region, SampleSource source, RegionApplier.Yield yield,
+      List<Map<String, Object>> out) {
+    if (region.provenance() == null || region.provenance().inputs() == null) {
+      return;
+    }
+    for (Region.Input in : region.provenance().inputs()) {
+      boolean discovery = in != null && (Role.REFERENCE.label().equals(in.role())
+          || Role.OBSERVED.label().equals(in.role()));
+      if (discovery && yield.read().sha256().equals(in.sha256())) {
+        Map<String, Object> r = new LinkedHashMap<>();
+        r.put("file", source.file());
+        r.put("role", source.role().label());
+        r.put("discoverySample", in.sample());
+        r.put("discoveryRole", in.role());
+        r.put("discoveryFile", in.file());
+        out.add(r);
+        return;
+      }
+    }
+  }
+
+  /** Whether the region's condition reads the external score column (held fixed under scale shifts). */
+  private static boolean usesExternalScore(Region region) {
+    String score = region.columns().score();
+    if (score == null) {
+      return false;
+    }
+    Map<String, Where.Kind> kinds = RegionApplier.kinds(region);
+    List<String> used = Stress.columnsOf(Where.parse(region.where(), kinds), kinds);
+    return used.contains(score) || used.contains("score:external");
   }
 }

@@ -108,10 +108,12 @@ public final class RegionCommand implements Callable<Integer> {
       }
       List<Region.Input> inputs = new ArrayList<>();
       for (Manifest.Sample s : m.samples()) {
-        inputs.add(new Region.Input(s.name(), s.role().label(), s.file(), s.sha256()));
+        var source = m.spec().sample(s.name());
+        inputs.add(new Region.Input(s.name(), s.role().label(), s.file(), s.sha256(),
+            source == null ? null : source.weight()));
       }
       Region region = new Region(Region.FORMAT, name, where, cuts, residual, m.spec().columns(),
-          m.spec().variations(), model,
+          m.spec().variations(), m.spec().scales(), model,
           new Region.Discovery(n.count(), b.sumOfWeights(), b.statisticalError(), Math.sqrt(syst2), variations, z,
               true),
           new Region.Provenance("triage " + ToolVersion.get(), Instant.now().truncatedTo(ChronoUnit.SECONDS)

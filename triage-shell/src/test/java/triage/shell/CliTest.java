@@ -512,6 +512,129 @@ class CliTest {
     assertTrue(JSON.readTree(forced.out()).get("overlapAllowed").asBoolean());
   }
 
+  /**
+   * The follow-up takes the reference weights and the scale systematics the region records, warns when an input is
+   * a discovery input file, and never calls a follow-up that reuses discovery data independent. By hand, region
+   * m &gt; 95 AND run = 5 on the follow-up reference: rows 1 (m 100, w 2) and 3 (m 99, w 1) pass, b = 3,
+   * σ_stat = √5; with m scaled by 1.1 both pass (3), by 0.9 neither (90, 89.1: 0), so σ_syst = 3.
+   */
+  @Test
+  void followupUsesTheRecordedWeightsAndScalesAndSaysWhenItIsNotIndependent() throws IOException {
+    writeSamples();
+    Files.writeString(dir.resolve("spec.json"), """
+        {"format": "triage-samples/1", "columns": {"features": ["m", "pt"], "id": "event", "run": "run"},
+         "scales": [{"name": "m_scale", "features": ["m"], "relative": 0.1}],
+         "samples": [{"name": "reference", "role": "reference", "file": "ref.csv", "weight": "w"},
+                     {"name": "observed", "role": "observed", "file": "obs.csv"}]}
+        """);
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--spec", dir.resolve("spec.json").toString())
+        .code());
+    Path region = dir.resolve("region.json");
+    assertEquals(0, run("region", "--index", index.toString(), "--where", "m > 95 AND run = 5", "--out",
+        region.toString()).code());
+    JsonNode frozen = JSON.readTree(Files.readString(region));
+    assertEquals("w", frozen.get("provenance").get("inputs").get(0).get("weight").asText());
+    assertEquals("m_scale", frozen.get("scales").get(0).get("name").asText());
+    Path fref = dir.resolve("fref.csv");
+    Path fobs = dir.resolve("fobs.csv");
+    Files.writeString(fref, "event,run,m,pt,w\n1,5,100,20,2\n2,6,120,30,1.5\n3,5,99,20,1\n");
+    Files.writeString(fobs, "event,run,m,pt\n21,5,101,21\n22,5,99,22\n23,6,98,23\n");
+    // without --weight: the discovery reference's weight column w
+    Run f = run("followup", "--region", region.toString(), "--reference", fref.toString(), "--observed",
+        fobs.toString(), "--json");
+    assertEquals(0, f.code(), f.err());
+    JsonNode j = JSON.readTree(f.out());
+    assertEquals("w", j.get("referenceWeight").asText());
+    assertEquals(3.0, j.get("result").get("expected").asDouble(), 0);
+    assertEquals(Math.sqrt(5), j.get("result").get("statError").asDouble(), 1e-15);
+    assertEquals(3.0, j.get("result").get("scales").get("m_scale").get(0).asDouble(), 0);
+    assertEquals(0.0, j.get("result").get("scales").get("m_scale").get(1).asDouble(), 0);
+    assertEquals(3.0, j.get("result").get("systError").asDouble(), 1e-15);
+    assertEquals(0, j.get("scalesNotIncluded").size());
+    assertTrue(j.get("independent").asBoolean());
+    assertEquals(0, j.get("reusedDiscoveryInputs").size());
+    Run human = run("followup", "--region", region.toString(), "--reference", fref.toString(), "--observed",
+        fobs.toString());
+    assertTrue(human.out().contains("m_scale          expected up 3.000, down 0.000 (scale: m × (1 ± 0.100))"),
+        human.out());
+    assertTrue(human.out().contains("reference weights from column 'w'"), human.out());
+    assertTrue(human.out().contains("this one is not (the region was frozen before these data were read)"),
+        human.out());
+    // a reference file without that column is refused unless --weight names its own
+    Path other = dir.resolve("fref-wt.csv");
+    Files.writeString(other, Files.readString(fref).replace(",w\n", ",wt\n"));
+    Run missing = run("followup", "--region", region.toString(), "--reference", other.toString(), "--observed",
+        fobs.toString());
+    assertEquals(ExitCodes.INPUT, missing.code(), missing.err());
+    assertTrue(missing.err().contains("fref-wt.csv:1: has no column 'w'") && missing.err().contains("--weight COL"),
+        missing.err());
+    assertEquals(0, run("followup", "--region", region.toString(), "--reference", other.toString(), "--weight",
+        "wt", "--observed", fobs.toString()).code());
+    // a region file that does not record the column, whose yields show weights (b_d = 0.5, σ = 0.5), is refused
+    Path unrecorded = dir.resolve("unrecorded.json");
+    Files.writeString(unrecorded, Files.readString(region).replaceFirst(",\\s*\"weight\" : \"w\"", ""));
+    Run unknown = run("followup", "--region", unrecorded.toString(), "--reference", fref.toString(), "--observed",
+        fobs.toString());
+    assertEquals(ExitCodes.INPUT, unknown.code(), unknown.err());
+    assertTrue(unknown.err().contains("was frozen from a weighted reference"), unknown.err());
+    // the discovery's own reference file: warned, and not called independent
+    Run same = run("followup", "--region", region.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", fobs.toString());
+    assertEquals(0, same.code(), same.err());
+    assertTrue(same.out().contains("WARNING: " + dir.resolve("ref.csv") + " is the discovery's reference file (the "
+        + "same SHA-256)"), same.out());
+    assertFalse(same.out().contains("this one is not"), same.out());
+    assertTrue(same.out().contains("it is not independent of the discovery"), same.out());
+    JsonNode sameJson = JSON.readTree(run("followup", "--region", region.toString(), "--reference",
+        dir.resolve("ref.csv").toString(), "--observed", fobs.toString(), "--json").out());
+    assertFalse(sameJson.get("independent").asBoolean());
+    assertEquals("reference", sameJson.get("reusedDiscoveryInputs").get(0).get("discoveryRole").asText());
+    // overlapping ids allowed: the closing sentence says the follow-up is biased
+    Run overlap = run("followup", "--region", region.toString(), "--reference", fref.toString(), "--observed",
+        dir.resolve("obs.csv").toString(), "--allow-overlap");
+    assertEquals(0, overlap.code(), overlap.err());
+    assertFalse(overlap.out().contains("this one is not"), overlap.out());
+    assertTrue(overlap.out().contains("reuses discovery data (2 observed events of the discovery sample; the "
+        + "discovery's observed file)"), overlap.out());
+    // a negative weight suggests the option followup has
+    Files.writeString(fref, "event,run,m,pt,w\n1,5,100,20,-2\n");
+    Run negative = run("followup", "--region", region.toString(), "--reference", fref.toString(), "--observed",
+        fobs.toString());
+    assertEquals(ExitCodes.INPUT, negative.code());
+    assertTrue(negative.err().contains("use --allow-negative-weights"), negative.err());
+    assertFalse(negative.err().contains("--on-bad-row"), negative.err());
+  }
+
+  /** A damaged region file is refused with the file, the field and its line:column, and no library internals. */
+  @Test
+  void regionFileErrorsNameTheFieldAndItsPlace() throws IOException {
+    Path index = ingestSamples();
+    Path region = dir.resolve("region.json");
+    assertEquals(0, run("region", "--index", index.toString(), "--where", "m BETWEEN 90 AND 110", "--out",
+        region.toString()).code());
+    String text = Files.readString(region);
+    String[] args = {"followup", "--region", region.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString()};
+    Files.writeString(region, text.replace("m BETWEEN 90 AND 110", "m BETWEEN 90 AND"));
+    Run where = run(args);
+    assertEquals(ExitCodes.INPUT, where.code());
+    assertTrue(where.err().startsWith("triage: " + region + ":4:3: not a valid region file: field 'where': "),
+        where.err());
+    Files.writeString(region, text.replace("\"hi\" : 110.0", "\"hi\" : 300.0"));
+    Run cuts = run(args);
+    assertEquals(ExitCodes.INPUT, cuts.code());
+    assertTrue(cuts.err().contains(region + ":5:14: not a valid region file: field 'cuts[0]': the cuts do not "
+        + "match 'where'"), cuts.err());
+    Files.writeString(region, "{\"format\": \"triage-region/1\",\n  \"cuts\": [ }");
+    Run syntax = run(args);
+    assertEquals(ExitCodes.INPUT, syntax.code());
+    assertTrue(syntax.err().contains(region + ":2:13: not a valid region file: Unexpected close marker"),
+        syntax.err());
+    assertFalse(syntax.err().contains("Source") || syntax.err().contains("StreamReadFeature"), syntax.err());
+    assertFalse(syntax.err().contains("\tat "), syntax.err());
+  }
+
   @Test
   void calibrateShardsResumeAndSummarise() throws IOException {
     StringBuilder ref = new StringBuilder("event,m,w\n");

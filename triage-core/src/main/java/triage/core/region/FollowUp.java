@@ -1,6 +1,7 @@
 package triage.core.region;
 
 import java.util.LinkedHashMap;
+import java.util.List;
 import java.util.Map;
 import triage.core.inference.ClsUpperLimit;
 import triage.core.inference.CountingSignificance;
@@ -11,8 +12,8 @@ import triage.core.inference.Significance;
  * the reference with its MC statistical error and systematic variations.
  *
  * <ul>
- *   <li>σ_syst: per variation the larger of |b_up − b| and |b_down − b|, added in quadrature over variations;
- *   σ_b = √(σ_stat² + σ_syst²);</li>
+ *   <li>σ_syst: per systematic (weight variation, or scale shift of features with b evaluated at 1 ± δ) the
+ *   larger of |b_up − b| and |b_down − b|, added in quadrature over systematics; σ_b = √(σ_stat² + σ_syst²);</li>
  *   <li>Z_Bi and its one-sided p: NIM A 595 (2008) 480 (see {@link CountingSignificance}), with τ = b/σ_b²;</li>
  *   <li>Z_A: the profile-likelihood (Asimov) significance of "Asymptotic formulae for likelihood-based tests of
  *   new physics", EPJ C 71 (2011) 1554, with σ_b, evaluated at s = n − b (when positive);</li>
@@ -37,6 +38,7 @@ import triage.core.inference.Significance;
  * @param systError σ_syst
  * @param totalError σ_b
  * @param variations per variation {up, down} expected yields
+ * @param scales per scale shift {up, down} expected yields (features scaled by 1 + δ, 1 − δ)
  * @param zBi Z_Bi
  * @param pBi its one-sided p-value
  * @param zAsimov Z_A at s = n − b (NaN when n ≤ b)
@@ -46,8 +48,14 @@ import triage.core.inference.Significance;
  * @param growthFor5Sigma k (NaN when s_pred ≤ 0)
  */
 public record FollowUp(long observed, double expected, double statError, double systError, double totalError,
-    Map<String, double[]> variations, double zBi, double pBi, double zAsimov, double clsUpperLimit95,
-    double predictedSignal, double compatibilityZ, double growthFor5Sigma) {
+    Map<String, double[]> variations, Map<String, double[]> scales, double zBi, double pBi, double zAsimov,
+    double clsUpperLimit95, double predictedSignal, double compatibilityZ, double growthFor5Sigma) {
+
+  /** Computes the follow-up statistics without scale shifts; see the other method. */
+  public static FollowUp compute(long n, double b, double statError, Map<String, double[]> variations,
+      long discoveryObserved, double discoveryExpected, double discoveryStatError) {
+    return compute(n, b, statError, variations, Map.of(), discoveryObserved, discoveryExpected, discoveryStatError);
+  }
 
   /**
    * Computes the follow-up statistics.
@@ -56,16 +64,19 @@ public record FollowUp(long observed, double expected, double statError, double 
    * @param b expected reference yield
    * @param statError √Σw² of the reference in the region
    * @param variations per variation {b_up, b_down}
+   * @param scales per scale shift {b at 1 + δ, b at 1 − δ}, folded into σ_syst like the variations
    * @param discoveryObserved n_d
    * @param discoveryExpected b_d
    * @param discoveryStatError σ_d, the MC statistical error √Σw² of b_d
    */
   public static FollowUp compute(long n, double b, double statError, Map<String, double[]> variations,
-      long discoveryObserved, double discoveryExpected, double discoveryStatError) {
+      Map<String, double[]> scales, long discoveryObserved, double discoveryExpected, double discoveryStatError) {
     double syst2 = 0;
-    for (double[] v : variations.values()) {
-      double d = Math.max(Math.abs(v[0] - b), Math.abs(v[1] - b));
-      syst2 += d * d;
+    for (Map<String, double[]> shifts : List.of(variations, scales)) {
+      for (double[] v : shifts.values()) {
+        double d = Math.max(Math.abs(v[0] - b), Math.abs(v[1] - b));
+        syst2 += d * d;
+      }
     }
     double syst = Math.sqrt(syst2);
     double sigma = Math.sqrt(statError * statError + syst2);
@@ -87,8 +98,8 @@ public record FollowUp(long observed, double expected, double statError, double 
         : Double.NaN;
     double compat = compatibilityZ(n, b, statError, discoveryObserved, discoveryExpected, discoveryStatError);
     double growth = growthFor5Sigma(sPred, b, statError, syst);
-    return new FollowUp(n, b, statError, syst, sigma, new LinkedHashMap<>(variations), zBi, pBi, zA, limit, sPred,
-        compat, growth);
+    return new FollowUp(n, b, statError, syst, sigma, new LinkedHashMap<>(variations), new LinkedHashMap<>(scales),
+        zBi, pBi, zA, limit, sPred, compat, growth);
   }
 
   /** The compatibility z of the follow-up with the discovery (see the class comment); NaN when b_d ≤ 0. */

@@ -20,6 +20,9 @@ public record IdSet(long count, String sha256, String data) {
   @JsonCreator
   public IdSet(@JsonProperty("count") long count, @JsonProperty("sha256") String sha256,
       @JsonProperty("data") String data) {
+    if (sha256 == null || data == null) {
+      throw new IllegalArgumentException("an id set needs 'count', 'sha256' and 'data'");
+    }
     byte[] bytes = Base64.getDecoder().decode(data);
     if (!Fingerprints.sha256(bytes).equals(sha256)) {
       throw new IllegalArgumentException("the id set's fingerprint does not match its data (was it edited?)");

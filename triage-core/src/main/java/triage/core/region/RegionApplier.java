@@ -14,6 +14,7 @@ import triage.core.sample.ReadOptions;
 import triage.core.sample.ReadResult;
 import triage.core.sample.SampleSource;
 import triage.core.sample.SampleSpec;
+import triage.core.sample.ScaleShift;
 import triage.core.sample.Variation;
 import triage.core.select.Expr;
 import triage.core.select.RowTest;
@@ -23,8 +24,13 @@ import triage.core.stats.NeumaierSum;
 
 /**
  * Applies a frozen region to sample files, streamed with the same checks as ingest: counts the observed events and
- * sums the reference weights (nominal, squared, and per variation) of the events inside, and collects the
- * observed ids for the overlap guard. No index is needed.
+ * sums the reference weights (nominal, squared, per variation, and per scale shift) of the events inside, and
+ * collects the observed ids for the overlap guard. No index is needed.
+ *
+ * <p>A scale shift is evaluated as {@code triage stress} evaluates it: each batch's listed features are multiplied
+ * by 1 ± relative, the frozen model (if the condition reads its score) scores the scaled features again, and the
+ * condition is tested once more; an external score column is held fixed. A shift that touches no column the
+ * condition reads (directly or through the model) leaves the yield as it is and is not re-evaluated.
  */
 public final class RegionApplier {
   /**
@@ -35,10 +41,11 @@ public final class RegionApplier {
    * @param sumOfWeights Σw inside
    * @param sumOfSquaredWeights Σw² inside
    * @param variations per variation {Σw_up, Σw_down} inside
+   * @param scales per scale shift {Σw inside with the features scaled by 1 + relative, by 1 − relative}
    * @param ids every event id of the file (for the overlap guard)
    */
   public record Yield(ReadResult read, long events, double sumOfWeights, double sumOfSquaredWeights,
-      Map<String, double[]> variations, long[] ids) {}
+      Map<String, double[]> variations, Map<String, double[]> scales, long[] ids) {}
 
   private RegionApplier() {
     // no instance
@@ -46,41 +53,22 @@ public final class RegionApplier {
 
   /** The column kinds a region's condition may use. */
   public static Map<String, Where.Kind> kinds(Region region) {
-    Map<String, Where.Kind> kinds = new LinkedHashMap<>();
-    var c = region.columns();
-    for (String f : c.features()) {
-      kinds.put(f, Where.Kind.NUMBER);
-    }
-    kinds.put(c.id(), Where.Kind.NUMBER);
-    if (c.run() != null) {
-      kinds.put(c.run(), Where.Kind.NUMBER);
-    }
-    if (c.block() != null) {
-      kinds.put(c.block(), Where.Kind.NUMBER);
-    }
-    if (c.score() != null) {
-      kinds.put(c.score(), Where.Kind.NUMBER);
-      // the external score column is also the model version 'external'
-      kinds.put("score:external", Where.Kind.NUMBER);
-    }
-    for (String k : c.categories()) {
-      kinds.put(k, Where.Kind.CATEGORY);
-    }
-    if (region.variations() != null) {
-      for (Variation v : region.variations()) {
-        kinds.put(v.up(), Where.Kind.NUMBER);
-        kinds.put(v.down(), Where.Kind.NUMBER);
-      }
-    }
-    if (region.model() != null) {
-      kinds.put("score:" + region.model().version(), Where.Kind.NUMBER);
-    }
-    return kinds;
+    return Region.kinds(region.columns(), region.variations(), region.model());
   }
 
-  /** Applies the region to one sample of a spec whose columns are the region's. */
+  /** Applies the region to one sample of a spec whose columns are the region's, without scale shifts. */
   public static Yield apply(Region region, SampleSpec spec, SampleSource source, ReadOptions options)
       throws IOException {
+    return apply(region, spec, source, options, List.of());
+  }
+
+  /**
+   * Applies the region to one sample of a spec whose columns are the region's.
+   *
+   * @param scales the scale shifts to evaluate (for a weighted sample only; ignored for an observed one)
+   */
+  public static Yield apply(Region region, SampleSpec spec, SampleSource source, ReadOptions options,
+      List<ScaleShift> scales) throws IOException {
     Map<String, Where.Kind> kinds = kinds(region);
     Expr condition = Where.parse(region.where(), kinds);
     List<String> slots = new ArrayList<>();
@@ -104,11 +92,29 @@ public final class RegionApplier {
       up[j] = new NeumaierSum();
       down[j] = new NeumaierSum();
     }
+    List<ScaleShift> shifts = weighted ? scales : List.of();
+    List<String> features = spec.columns().features();
+    double[][][] factors = new double[shifts.size()][][];
+    for (int j = 0; j < shifts.size(); j++) {
+      ScaleShift shift = shifts.get(j);
+      if (values.reads(shift.features())) {
+        factors[j] = new double[2][features.size()];
+        for (int k = 0; k < features.size(); k++) {
+          boolean scaled = shift.features().contains(features.get(k));
+          factors[j][0][k] = scaled ? 1 + shift.relative() : 1;
+          factors[j][1][k] = scaled ? 1 - shift.relative() : 1;
+        }
+      }
+    }
+    NeumaierSum[][] shifted = new NeumaierSum[shifts.size()][];
+    for (int j = 0; j < shifted.length; j++) {
+      shifted[j] = new NeumaierSum[] {new NeumaierSum(), new NeumaierSum()};
+    }
     long[] count = {0};
     long[][] ids = {new long[1024]};
     int[] nIds = {0};
     ReadResult read = EventFileReader.read(spec, source, options, batch -> {
-      values.load(batch);
+      values.load(batch, null);
       for (int i = 0; i < batch.size(); i++) {
         if (nIds[0] == ids[0].length) {
           ids[0] = Arrays.copyOf(ids[0], ids[0].length * 2);
@@ -126,12 +132,28 @@ public final class RegionApplier {
           }
         }
       }
+      for (int j = 0; j < shifts.size(); j++) {
+        for (int side = 0; factors[j] != null && side < 2; side++) {
+          values.load(batch, factors[j][side]);
+          for (int i = 0; i < batch.size(); i++) {
+            values.at(i);
+            if (test.test(values)) {
+              shifted[j][side].add(batch.weight(i));
+            }
+          }
+        }
+      }
     }, null);
     Map<String, double[]> sums = new LinkedHashMap<>();
     for (int j = 0; j < up.length; j++) {
       sums.put(variations.get(j).name(), new double[] {up[j].value(), down[j].value()});
     }
-    return new Yield(read, count[0], w.value(), w2.value(), sums, Arrays.copyOf(ids[0], nIds[0]));
+    Map<String, double[]> scaleSums = new LinkedHashMap<>();
+    for (int j = 0; j < shifts.size(); j++) {
+      scaleSums.put(shifts.get(j).name(), factors[j] == null ? new double[] {w.value(), w.value()}
+          : new double[] {shifted[j][0].value(), shifted[j][1].value()});
+    }
+    return new Yield(read, count[0], w.value(), w2.value(), sums, scaleSums, Arrays.copyOf(ids[0], nIds[0]));
   }
 
   /** One batch's values by slot, for the compiled condition. */
@@ -148,8 +170,14 @@ public final class RegionApplier {
     /** For each model input, the feature number in the spec (matched by name). */
     private final int[] modelInputs;
 
+    /** The spec's feature names. */
+    private final List<String> features;
+
     /** The batch. */
     private EventBatch batch;
+
+    /** Per feature the factor it is scaled by, or null when the features are as read. */
+    private double[] factor;
 
     /** Model scores of the batch. */
     private double[] scores = new double[0];
@@ -159,7 +187,7 @@ public final class RegionApplier {
 
     BatchValues(SampleSpec spec, List<String> slots, List<Variation> variations, RatioModel model) {
       this.model = model;
-      List<String> features = spec.columns().features();
+      features = spec.columns().features();
       modelInputs = model == null ? new int[0] : new int[model.featureNames().size()];
       for (int k = 0; k < modelInputs.length; k++) {
         modelInputs[k] = features.indexOf(model.featureNames().get(k));
@@ -206,15 +234,32 @@ public final class RegionApplier {
       }
     }
 
-    void load(EventBatch b) {
+    /** Whether the condition reads any of these features, directly or through the frozen model's score. */
+    boolean reads(List<String> scaled) {
+      for (int s = 0; s < kind.length; s++) {
+        if (kind[s] == 0 && scaled.contains(features.get(index[s]))) {
+          return true;
+        }
+        if (kind[s] == 7 && model.featureNames().stream().anyMatch(scaled::contains)) {
+          return true;
+        }
+      }
+      return false;
+    }
+
+    /**
+     * Takes a batch, with every feature multiplied by its factor (null: as read), and scores it with the model.
+     */
+    void load(EventBatch b, double[] scale) {
       batch = b;
+      factor = scale;
       if (model != null) {
         int n = b.size();
         int nf = modelInputs.length;
         double[] x = new double[nf * n];
         for (int e = 0; e < n; e++) {
           for (int k = 0; k < nf; k++) {
-            x[k * n + e] = b.feature(e, modelInputs[k]);
+            x[k * n + e] = b.feature(e, modelInputs[k]) * (scale == null ? 1 : scale[modelInputs[k]]);
           }
         }
         scores = model.scoreAll(x, n, 1);
@@ -228,7 +273,7 @@ public final class RegionApplier {
     @Override
     public double number(int slot) {
       return switch (kind[slot]) {
-        case 0 -> batch.feature(i, index[slot]);
+        case 0 -> batch.feature(i, index[slot]) * (factor == null ? 1 : factor[index[slot]]);
         case 1 -> batch.id(i);
         case 2 -> batch.run(i);
         case 3 -> batch.block(i);

@@ -39,6 +39,13 @@ class FollowUpTest {
     // = 150 + 9 + 375 + 126.5625 = 660.5625 (by hand); z = (120 − 100 − 50)/√660.5625.
     assertEquals(50, f.predictedSignal(), 1e-12);
     assertEquals(-30 / Math.sqrt(660.5625), f.compatibilityZ(), 1e-12);
+    // A scale shift is one more systematic in quadrature: by hand max(|112 − 100|, |100 − 100|) = 12, so σ_syst =
+    // √(9 + 16 + 144) = 13; the compatibility z does not use σ_syst.
+    FollowUp scaled = FollowUp.compute(120, 100, 2, v, Map.of("s", new double[] {112, 100}), 60, 40, 3);
+    assertEquals(13, scaled.systError(), 1e-12);
+    assertEquals(Math.sqrt(4 + 169), scaled.totalError(), 1e-12);
+    assertArrayEquals(new double[] {112, 100}, scaled.scales().get("s"));
+    assertEquals(f.compatibilityZ(), scaled.compatibilityZ(), 0);
     // CLs (J. Phys. G 28 (2002) 2693): with n = 0 the CLs limit is ln 20 = 2.9957 for any b (CHECK-VALUES §4);
     // tiny σ_b here.
     assertEquals(Math.log(20), FollowUp.compute(0, 3, 1e-6, Map.of(), 1, 1, 0).clsUpperLimit95(), 1e-3);
