@@ -147,8 +147,13 @@ public final class RankCommand implements Callable<Integer> {
       if (versus != Versus.all) {
         EventStore.SelectedRows inside = store.rows(reference, features, selection);
         int refKept = inside.weights().length;
+        double insideSum = triage.core.stats.NeumaierSum.of(inside.weights());
         if (refKept < 2) {
           o.say("versus reference inside the selection: only %d reference events, skipped", refKept);
+          result.put("versusInside", null);
+        } else if (!(insideSum > 0)) {
+          o.say("versus reference inside the selection: its %d reference events' weights sum to %.4g (negative "
+              + "weights), not a positive yield: no distribution to compare with, skipped", refKept, insideSum);
           result.put("versusInside", null);
         } else {
           double[][] refIn = inside.columns();
@@ -227,7 +232,17 @@ public final class RankCommand implements Callable<Integer> {
     o.say("  top pairs in 2D (%d×%d reference-quantile bins)   JS (nats)  beyond the better feature alone", pairBins,
         pairBins);
     for (triage.core.ranking.FeaturePairs.Pair p : all.subList(0, Math.min(pairs, all.size()))) {
-      o.say("    %-28s %10.5f %+10.5f", p.first() + " × " + p.second(), p.jensenShannon(), p.beyondMarginals());
+      if (Double.isNaN(p.jensenShannon())) {
+        o.say("    %-28s %10s %10s", p.first() + " × " + p.second(), "-", "-");
+      } else {
+        o.say("    %-28s %10.5f %+10.5f", p.first() + " × " + p.second(), p.jensenShannon(), p.beyondMarginals());
+      }
+    }
+    int unmeasured = triage.core.ranking.FeaturePairs.unmeasured(all);
+    if (unmeasured > 0) {
+      o.say("  note: %d of %d pairs not measured ('-', listed last): a 2D cell's reference weights sum below zero "
+          + "(negative weights), where a divergence is undefined; fewer --pair-bins make larger cells", unmeasured,
+          all.size());
     }
     return all;
   }
@@ -238,8 +253,13 @@ public final class RankCommand implements Callable<Integer> {
     o.say("  %-14s %8s %10s %8s %10s %9s %8s %8s", "feature", "KS D", "|AUC-0.5|", "W1/sd", "JS (nats)", "KS p asym",
         "p raw", "p adj");
     for (FeatureRanking.Row r : rows) {
-      o.say("  %-14s %8.4f %10.4f %8.4f %10.5f %9s %8s %8s", r.feature(), r.ks(), r.aucSeparation(),
-          r.wasserstein(), r.jensenShannon(), Output.p(r.ksAsymptoticP()), p(r.rawP()), p(r.adjustedP()));
+      o.say("  %-14s %8.4f %10.4f %8.4f %10s %9s %8s %8s", r.feature(), r.ks(), r.aucSeparation(),
+          r.wasserstein(), Double.isNaN(r.jensenShannon()) ? "-" : String.format("%.5f", r.jensenShannon()),
+          Output.p(r.ksAsymptoticP()), p(r.rawP()), p(r.adjustedP()));
+      if (Double.isNaN(r.jensenShannon())) {
+        o.say("    (%s: JS '-': a quantile bin's reference weights sum below zero, where a divergence is undefined)",
+            r.feature());
+      }
     }
   }
 

@@ -169,12 +169,24 @@ public final class BinnedJensenShannon {
   /** {@link #statistic(double[], double[], double[], double[])} on samples already sorted and validated. */
   double statistic(WeightedSample a, WeightedSample b) {
     final double[] e = edges(b);
-    final double[] p = histogram(a, e, "observed");
-    final double[] q = histogram(b, e, "reference");
+    final double[] p = histogram(a, e, "observed", true);
+    final double[] q = histogram(b, e, "reference", true);
     return divergence(p, q, logBase);
   }
 
-  private double[] histogram(WeightedSample s, double[] e, String name) {
+  /**
+   * As {@link #statistic(WeightedSample, WeightedSample)}, but NaN instead of an exception when a bin of either
+   * sample ends with negative content (signed weights), where the divergence is undefined.
+   */
+  double statisticOrNaN(WeightedSample a, WeightedSample b) {
+    final double[] e = edges(b);
+    final double[] p = histogram(a, e, "observed", false);
+    final double[] q = histogram(b, e, "reference", false);
+    return p == null || q == null ? Double.NaN : divergence(p, q, logBase);
+  }
+
+  /** The bin contents; a negative one throws when {@code strict}, else gives null. */
+  private double[] histogram(WeightedSample s, double[] e, String name, boolean strict) {
     final int k = e.length - 1;
     final NeumaierSum[] bins = new NeumaierSum[k + 2];
     for (int i = 0; i < bins.length; i++) {
@@ -189,6 +201,9 @@ public final class BinnedJensenShannon {
     for (int i = from; i < to; i++) {
       h[i - from] = bins[i].value();
       if (h[i - from] < 0) {
+        if (!strict) {
+          return null;
+        }
         throw Arguments.error("%s bin %d content must be >= 0 but was %s", name, i - 1, h[i - from]);
       }
     }

@@ -14,6 +14,12 @@ import java.util.stream.IntStream;
  *
  * <p>Values outside the reference's range fall into the outermost bins. Pairs are independent, so they are
  * computed in parallel with results identical on any thread count.
+ *
+ * <p>Negative reference weights are treated as the one-feature measures of {@link FeatureRanking} treat them
+ * ({@link NegativeWeights#ALLOW}): signed weights in the quantiles and the cell sums, the reference's total weight
+ * still {@code > 0}. A divergence needs every cell's content {@code >= 0}; a pair with a cell whose reference weights
+ * sum below zero has no divergence, and gets NaN for both numbers (listed after the measured pairs;
+ * {@link #unmeasured} counts them) rather than a number from clipped or dropped cells.
  */
 public final class FeaturePairs {
   /**
@@ -23,6 +29,7 @@ public final class FeaturePairs {
    * @param second the second feature
    * @param jensenShannon 2D binned JS divergence, nats
    * @param beyondMarginals {@code jensenShannon − max(JS of first, JS of second)} on the same bins
+   *     (both NaN when a cell of the pair's grid has negative reference content)
    */
   public record Pair(String first, String second, double jensenShannon, double beyondMarginals) {}
 
@@ -36,7 +43,7 @@ public final class FeaturePairs {
    * @param names feature names
    * @param observed observed values, {@code observed[f][i]} (weights one)
    * @param reference reference values, {@code reference[f][j]}
-   * @param referenceWeights reference weights (non-negative)
+   * @param referenceWeights reference weights (signed; their total must be {@code > 0})
    * @param bins reference-quantile bins per feature (2 or more)
    */
   public static List<Pair> rank(List<String> names, double[][] observed, double[][] reference,
@@ -48,7 +55,8 @@ public final class FeaturePairs {
     if (bins < 2) {
       throw new IllegalArgumentException("need at least 2 bins per feature, not " + bins);
     }
-    BinnedJensenShannon quantiles = BinnedJensenShannon.withDefaults().with(Binning.referenceQuantiles(bins));
+    BinnedJensenShannon quantiles = BinnedJensenShannon.withDefaults().with(Binning.referenceQuantiles(bins))
+        .with(NegativeWeights.ALLOW);
     int[][] obsCell = new int[nf][];
     int[][] refCell = new int[nf][];
     int[] size = new int[nf];
@@ -58,8 +66,10 @@ public final class FeaturePairs {
       size[f] = Math.max(1, edges.length - 1);
       obsCell[f] = cells(observed[f], edges, size[f]);
       refCell[f] = cells(reference[f], edges, size[f]);
-      single[f] = BinnedJensenShannon.divergence(counts(obsCell[f], null, size[f]),
-          counts(refCell[f], referenceWeights, size[f]), BinnedJensenShannon.LogBase.NATURAL);
+      double[] q = counts(refCell[f], referenceWeights, size[f]);
+      // A negative bin of one feature is a negative cell of every pair with it: those pairs get NaN below.
+      single[f] = hasNegative(q) ? Double.NaN
+          : BinnedJensenShannon.divergence(counts(obsCell[f], null, size[f]), q, BinnedJensenShannon.LogBase.NATURAL);
     }
     int pairs = nf * (nf - 1) / 2;
     int[] firstOf = new int[pairs];
@@ -86,15 +96,39 @@ public final class FeaturePairs {
       for (int j = 0; j < ra.length; j++) {
         qr[ra[j] * size[b] + rb[j]] += referenceWeights[j];
       }
-      js[p] = BinnedJensenShannon.divergence(po, qr, BinnedJensenShannon.LogBase.NATURAL);
+      js[p] = hasNegative(qr) ? Double.NaN
+          : BinnedJensenShannon.divergence(po, qr, BinnedJensenShannon.LogBase.NATURAL);
     });
     List<Pair> out = new ArrayList<>(pairs);
     for (int p = 0; p < pairs; p++) {
       out.add(new Pair(names.get(firstOf[p]), names.get(secondOf[p]), js[p],
           js[p] - Math.max(single[firstOf[p]], single[secondOf[p]])));
     }
-    out.sort(Comparator.comparingDouble(Pair::jensenShannon).reversed());
+    // Largest first, unmeasured pairs (NaN) last in the given order.
+    out.sort(Comparator.comparingDouble((Pair x) -> Double.isNaN(x.jensenShannon()) ? Double.NEGATIVE_INFINITY
+        : x.jensenShannon()).reversed());
     return out;
+  }
+
+  /**
+   * @param pairs pairs from {@link #rank}
+   * @return how many have no divergence because a cell's reference weights sum below zero
+   */
+  public static int unmeasured(List<Pair> pairs) {
+    int n = 0;
+    for (Pair p : pairs) {
+      n += Double.isNaN(p.jensenShannon()) ? 1 : 0;
+    }
+    return n;
+  }
+
+  private static boolean hasNegative(double[] content) {
+    for (double c : content) {
+      if (c < 0) {
+        return true;
+      }
+    }
+    return false;
   }
 
   /** The bin of each value: {@code edges[k] ≤ v < edges[k+1]}, the last bin closed, outside values clamped. */

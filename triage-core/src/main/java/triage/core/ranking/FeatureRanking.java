@@ -14,7 +14,8 @@ import java.util.List;
  *   sample sizes;</li>
  *   <li>{@code aucSeparation}: |AUC − 0.5| of the weighted ROC curve (0 when the feature does not separate);</li>
  *   <li>{@code wasserstein}: Wasserstein-1 distance in units of the reference's weighted standard deviation;</li>
- *   <li>{@code jensenShannon}: binned Jensen–Shannon divergence (nats), bins from reference quantiles;</li>
+ *   <li>{@code jensenShannon}: binned Jensen–Shannon divergence (nats), bins from reference quantiles; NaN when
+ *   a bin's reference weights sum below zero (negative weights), where the divergence is undefined;</li>
  *   <li>{@code rawP}, {@code adjustedP}: resampling p-values of D, (k + 1)/(B + 1), raw and maxT-adjusted: a
  *   permutation test of the pooled events when all reference weights are equal, else B null draws from the
  *   weighted reference ({@link ReferenceDrawTest}); NaN when no resampling was asked for, or when the weights
@@ -73,7 +74,7 @@ public final class FeatureRanking {
       WeightedSample b = WeightedSample.of("reference", reference[f], referenceWeights, NegativeWeights.ALLOW);
       var k = ks.test(a, b);
       return new Row(names.get(f), k.statistic(), k.pValue(), WeightedRocAuc.separation(a, b),
-          w1.statistic(a, b), js.statistic(a, b), Double.NaN, Double.NaN);
+          w1.statistic(a, b), js.statisticOrNaN(a, b), Double.NaN, Double.NaN);
     }).toList());
     if (permutations > 0) {
       MaxTPermutationTest.Result r = nullTest(rows, observed, reference, referenceWeights, permutations, seed);

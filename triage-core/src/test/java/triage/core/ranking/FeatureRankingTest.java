@@ -264,4 +264,30 @@ class FeatureRankingTest {
     FeatureRanking.Row row = FeatureRanking.rank(List.of("x"), obs, ref, w, 19, 1).get(0);
     assertTrue(Double.isNaN(row.rawP()) && Double.isNaN(row.adjustedP()), row.toString());
   }
+
+  @Test
+  void aNegativeQuantileBinGivesNoJensenShannonButTheOtherMeasures() {
+    // Reference: −1 (weight −0.5), 0 (weight 10), 1..99 (weight 1); Σw = 108.5. The first of the 20 quantile
+    // levels, 108.5/20 = 5.425, is reached at 0 (cumulative −0.5, then 9.5), so the first bin [−1, 0) holds the
+    // negative weight alone (by hand): the binned divergence is undefined there and is NaN, where it threw (a
+    // trace in `rank`); the other measures take signed weights and stay finite.
+    double[] ref = new double[101];
+    double[] w = new double[101];
+    ref[0] = -1;
+    w[0] = -0.5;
+    w[1] = 10;
+    for (int j = 2; j < 101; j++) {
+      ref[j] = j - 1;
+      w[j] = 1;
+    }
+    double[] obs = new double[50];
+    for (int i = 0; i < 50; i++) {
+      obs[i] = 2 * i + 0.5;
+    }
+    FeatureRanking.Row row = FeatureRanking.rank(List.of("x"), new double[][] {obs}, new double[][] {ref}, w, 0, 1)
+        .get(0);
+    assertTrue(Double.isNaN(row.jensenShannon()), row.toString());
+    assertTrue(Double.isFinite(row.ks()) && Double.isFinite(row.wasserstein())
+        && Double.isFinite(row.aucSeparation()), row.toString());
+  }
 }
