@@ -249,6 +249,8 @@ public final class CalibrateCommand implements Callable<Integer> {
           + "needs a reference without negative weights; this reference has "
           + c.manifest().sample(reference).negativeWeights() + " (fit again with --optimiser lbfgs)");
     }
+    // every mode draws toys from this reference with probability ∝ weight: refused before anything is written
+    triage.core.calibration.ToySampler.requirePositiveWeights(w);
     if (c.expected() > 0.5 * w.length) {
       throw new InputException(index, String.format(Locale.ROOT, "toys draw about %.0f events from a reference "
           + "of %d without replacement; the reference must be much larger (at least twice, better ten times) "

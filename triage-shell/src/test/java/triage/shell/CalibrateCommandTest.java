@@ -28,12 +28,18 @@ class CalibrateCommandTest {
 
   /** Writes samples (seed 8), ingests them into DIR/a and fits m1 (layers 2, 100 iterations, one thread). */
   private Path fittedIndex() throws IOException {
+    return fittedIndex(false);
+  }
+
+  /** As {@link #fittedIndex()}; with {@code negative}, every 50th reference weight is −0.01 instead. */
+  private Path fittedIndex(boolean negative) throws IOException {
     StringBuilder ref = new StringBuilder("event,m,w\n");
     StringBuilder obs = new StringBuilder("event,m\n");
     StringBuilder sig = new StringBuilder("event,m\n");
     java.util.SplittableRandom r = new java.util.SplittableRandom(8);
     for (int i = 0; i < 2000; i++) {
-      ref.append(i).append(',').append(r.nextGaussian()).append(',').append(0.025 + 0.05 * r.nextDouble())
+      double w = 0.025 + 0.05 * r.nextDouble();
+      ref.append(i).append(',').append(r.nextGaussian()).append(',').append(negative && i % 50 == 7 ? -0.01 : w)
           .append('\n');
     }
     for (int i = 0; i < 100; i++) {
@@ -47,9 +53,13 @@ class CalibrateCommandTest {
     Files.writeString(dir.resolve("obs.csv"), obs);
     Files.writeString(dir.resolve("sig.csv"), sig);
     Path index = dir.resolve("a");
-    CliTest.Run ingest = run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
-        "--observed", dir.resolve("obs.csv").toString(), "--followup-observed", dir.resolve("sig.csv").toString(),
-        "--features", "m", "--weight", "w");
+    List<String> args = new ArrayList<>(List.of("ingest", "--index", index.toString(), "--reference",
+        dir.resolve("ref.csv").toString(), "--observed", dir.resolve("obs.csv").toString(), "--followup-observed",
+        dir.resolve("sig.csv").toString(), "--features", "m", "--weight", "w"));
+    if (negative) {
+      args.add("--allow-negative-weights");
+    }
+    CliTest.Run ingest = run(args.toArray(String[]::new));
     assertEquals(0, ingest.code(), ingest.err());
     CliTest.Run fit = run("fit", "--index", index.toString(), "--layers", "2", "--max-iterations", "100",
         "--threads", "1");
@@ -292,5 +302,34 @@ class CalibrateCommandTest {
         dir.resolve("spec.json").resolve("h.png").toString());
     assertEquals(ExitCodes.INPUT, hist.code(), hist.err());
     assertTrue(hist.err().contains("spec.json: is a file"), hist.err());
+  }
+
+  /**
+   * A reference with negative weights cannot give toys (review: a trace saying "cannot be sampled … this is a
+   * bug"): every mode that draws toys (null toys, clip tuning, signal injection) is refused before anything is
+   * written, exit 3, one line saying why (events are drawn with probability proportional to weight) and what to do.
+   */
+  @Test
+  void toysFromNegativeWeightsAreRefusedWithTheReason() throws IOException {
+    Path index = fittedIndex(true);
+    String[][] modes = {{"--toys", "3"}, {"--tune-clip", "--toys", "2", "--clips", "2", "--caps", "5,10"},
+        {"--inject-bump", "m=2,0.1", "--inject-yield", "5", "--toys", "2"}};
+    for (String[] mode : modes) {
+      List<String> args = new ArrayList<>(List.of("calibrate", "--index", index.toString(), "--model", "m1"));
+      args.addAll(List.of(mode));
+      CliTest.Run r = run(args.toArray(String[]::new));
+      assertEquals(ExitCodes.INPUT, r.code(), String.join(" ", mode) + ": " + r.err());
+      // 40 of the 2,000 reference events (i % 50 == 7) have weight −0.01
+      assertTrue(r.err().contains("toys need every reference weight positive, and this reference has 40 negative "
+          + "and 0 zero weights"), r.err());
+      assertTrue(r.err().contains("probability proportional to weight"), r.err());
+      assertFalse(r.err().contains("\tat "), r.err());
+      assertEquals(1, r.err().strip().lines().filter(l -> !l.startsWith("WARNING")).count(), r.err());
+    }
+    try (Stream<Path> files = Files.walk(index.resolve("toys"))) {
+      assertTrue(files.noneMatch(p -> p.toString().endsWith(".jsonl")), "no toy written");
+    } catch (java.nio.file.NoSuchFileException e) {
+      // no toys folder at all: nothing written either
+    }
   }
 }

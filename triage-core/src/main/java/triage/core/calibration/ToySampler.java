@@ -24,7 +24,8 @@ import triage.core.stats.ProportionalDraw;
  * on its own and shards of toy indices are disjoint.
  *
  * <ul>
- *   <li>Weights must be positive; zero and negative weights cannot be sampled and are refused.</li>
+ *   <li>Weights must be positive; zero and negative weights cannot be sampled and are refused
+ *   ({@link #requirePositiveWeights}, an input error that says what to do).</li>
  *   <li>n is capped at the reference size (then every event is chosen and the toy's reference is empty, which the
  *   caller must refuse). Events whose π would reach 1 are always drawn (and the rest re-planned).</li>
  * </ul>
@@ -49,6 +50,40 @@ public final class ToySampler {
   }
 
   /**
+   * Refuses a reference that toys cannot be drawn from: one with a weight that is zero, negative or not finite.
+   * A toy draws each event with probability proportional to its weight and keeps the rest at w/(1 − π), so a
+   * weight of zero or less has no probability to be drawn with, and the toys would not be samples of the
+   * reference's (signed) distribution. Called before any toy is fitted, so a refusal writes nothing.
+   *
+   * @param weights the reference weights
+   * @throws triage.core.sample.InputException naming how many weights are at fault and the first one, and what the
+   *     analyst can do
+   */
+  public static void requirePositiveWeights(double[] weights) {
+    int negative = 0;
+    int zero = 0;
+    int first = -1;
+    for (int i = 0; i < weights.length; i++) {
+      double w = weights[i];
+      if (!(w > 0) || Double.isInfinite(w)) {
+        negative += w < 0 ? 1 : 0;
+        zero += w == 0 ? 1 : 0;
+        first = first < 0 ? i : first;
+      }
+    }
+    if (first >= 0) {
+      throw new triage.core.sample.InputException(null, String.format(java.util.Locale.ROOT,
+          "toys need every reference weight positive, and this reference has %d negative and %d zero weights "
+          + "(the first: w = %s): a toy draws its events from the reference with probability "
+          + "proportional to weight, and a weight of zero or less cannot be drawn with, so such toys would not be "
+          + "null samples. To calibrate, ingest a reference with positive weights only (e.g. with the negative-"
+          + "weight events merged into nearby positive ones beforehand, or set aside by an ingest without "
+          + "--allow-negative-weights and with --on-bad-row skip, which changes the expected yield by their Σw)",
+          negative, zero, weights[first]));
+    }
+  }
+
+  /**
    * Draws toy k.
    *
    * @param weights reference weights (positive)
@@ -60,13 +95,7 @@ public final class ToySampler {
     if (!(expected > 0)) {
       throw new IllegalArgumentException("expected count " + expected + " is not positive");
     }
-    for (int i = 0; i < weights.length; i++) {
-      double w = weights[i];
-      if (!(w > 0) || Double.isInfinite(w)) {
-        throw new IllegalArgumentException("reference weight " + w + " at event " + i
-            + " cannot be sampled: toys need positive, finite weights");
-      }
-    }
+    requirePositiveWeights(weights);
     UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(toySeed(runSeed, toy));
     int n = (int) Math.min(weights.length, PoissonSampler.of(rng, expected).sample());
     double total = 0;

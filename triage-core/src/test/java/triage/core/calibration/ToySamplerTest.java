@@ -83,7 +83,12 @@ class ToySamplerTest {
     assertEquals(50, mean, 4 * Math.sqrt(50.0 / n));
     // The variance of a sample variance of Poisson(50) is about 2·50²/n.
     assertEquals(50, var, 4 * Math.sqrt(2 * 50.0 * 50.0 / n));
-    assertThrows(IllegalArgumentException.class, () -> ToySampler.draw(new double[] {1, -1}, 1, 1, 0));
+    // zero and negative weights are an input error that names them and says why (drawing ∝ weight)
+    var e = assertThrows(triage.core.sample.InputException.class,
+        () -> ToySampler.draw(new double[] {1, -1, 0, -2}, 1, 1, 0));
+    assertTrue(e.getMessage().contains("this reference has 2 negative and 1 zero weights (the first: w = -1.0)"),
+        e.getMessage());
+    assertTrue(e.getMessage().contains("probability proportional to weight"), e.getMessage());
   }
 
   /**
