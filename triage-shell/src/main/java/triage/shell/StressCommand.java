@@ -103,18 +103,27 @@ public final class StressCommand implements Callable<Integer> {
       o.say("selection  %s", where);
       o.say("observed %d, expected %.4g ± %.2g (MC stat.) ± %.2g (syst.) = ± %.2g; excess %+.4g", r.observed(),
           r.expected(), r.statError(), r.systError(), r.totalError(), r.observed() - r.expected());
-      o.say("local Z_Bi  %.2f with MC statistics only, %.2f with the systematics folded in", r.zStatOnly(),
-          r.zWithSystematics());
+      if (r.positiveYield()) {
+        o.say("local Z_Bi  %.2f with MC statistics only, %.2f with the systematics folded in", r.zStatOnly(),
+            r.zWithSystematics());
+      } else {
+        o.say("local Z_Bi  none: the expected yield is not positive");
+      }
       o.say("");
       o.say("  %-20s %-8s %12s %12s %9s %14s", "systematic", "kind", "expected +1σ", "expected −1σ", "σ (rel.)",
           "pull to explain");
       for (Stress.Row row : r.rows()) {
-        o.say("  %-20s %-8s %12.4g %12.4g %8.1f%% %14s", row.name(), row.kind(), row.expectedUp(),
-            row.expectedDown(), 100 * row.sigma() / r.expected(), Double.isNaN(row.pullToExplain()) ? "-"
+        o.say("  %-20s %-8s %12.4g %12.4g %9s %14s", row.name(), row.kind(), row.expectedUp(),
+            row.expectedDown(), r.positiveYield() ? String.format(java.util.Locale.ROOT, "%.1f%%",
+            100 * row.sigma() / r.expected()) : "-", Double.isNaN(row.pullToExplain()) ? "-"
             : Double.isInfinite(row.pullToExplain()) ? "cannot" : String.format(java.util.Locale.ROOT, "%.1fσ",
             row.pullToExplain()));
       }
       o.say("verdict    %s", r.verdict());
+      if (!r.positiveYield()) {
+        notes.add("the expected yield is not positive (" + String.format(java.util.Locale.ROOT, "%.4g",
+            r.expected()) + "): no significance and no pulls, as in select; the ±1σ yields are listed as computed");
+      }
       for (String note : notes) {
         o.say("note: %s", note);
       }

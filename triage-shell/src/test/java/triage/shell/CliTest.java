@@ -222,6 +222,22 @@ class CliTest {
     }
     Run nonPositive = run("select", "--index", index.toString(), "--where", "x > 1", "--json");
     assertEquals(0, nonPositive.code(), nonPositive.err());
+    // stress says the same as select (x > 1: no observed event, the reference's two events at 2.0 of weights −1 and
+    // 0.5, Σw = −0.5): no significance and no pulls, where it gave pulls in units of a shift of a negative yield
+    Run stress = run("stress", "--index", index.toString(), "--where", "x > 1", "--scale", "s=x:0.1");
+    assertEquals(0, stress.code(), stress.err());
+    assertTrue(stress.out().contains("local Z_Bi  none: the expected yield is not positive"), stress.out());
+    assertTrue(stress.out().contains("verdict    the selected reference weights do not sum to a positive yield"),
+        stress.out());
+    assertFalse(stress.out().contains("systematic explains"), stress.out());
+    Run stressJson = run("stress", "--index", index.toString(), "--where", "x > 1", "--scale", "s=x:0.1",
+        "--json");
+    assertEquals(0, stressJson.code(), stressJson.err());
+    JsonNode sj = JSON.readTree(stressJson.out());
+    assertFalse(sj.get("result").get("positiveYield").asBoolean(), stressJson.out());
+    assertEquals("NaN", sj.get("result").get("zStatOnly").asText());
+    assertEquals("NaN", sj.get("result").get("rows").get(0).get("pullToExplain").asText());
+    assertTrue(sj.get("notes").get(0).asText().contains("expected yield is not positive"), stressJson.out());
     Run pair = run("hist", "--index", index.toString(), "--column", "x", "--pair", "followup");
     assertEquals(ExitCodes.USAGE, pair.code());
     // The profiled optimiser's output-layer problem is convex only without negative weights: refused before fitting.

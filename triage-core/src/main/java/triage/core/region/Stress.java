@@ -20,6 +20,11 @@ import triage.core.stats.NeumaierSum;
  * needed is {@code θ = (n − b) / (b_θ=1 − b)}, taking the side that raises the expectation and extrapolating
  * linearly beyond ±1σ; it is infinite when neither side raises it. The significance is Z_Bi with that total
  * background uncertainty (see {@link CountingSignificance#zBiFromBackground}).
+ *
+ * <p>An expected yield that is not positive (no reference weight selected, or negative weights that outweigh the
+ * positive ones) has no significance and no pulls: a pull in units of a shift of a yield of zero or less measures
+ * nothing (with b = −0.024 it gave "3930σ" and the verdict that no systematic explains the excess). Both
+ * significances and every pull are then NaN, {@link Result#positiveYield()} is false, and the verdict says why.
  */
 public final class Stress {
   private Stress() {
@@ -51,16 +56,18 @@ public final class Stress {
    * @param zStatOnly Z_Bi with the MC statistical error only
    * @param zWithSystematics Z_Bi with the total error
    * @param rows per systematic
-   * @param verdict one line: whether any single systematic within 2σ explains the excess
+   * @param positiveYield whether the expected yield is positive; when not, the significances and pulls are NaN
+   * @param verdict one line: whether any single systematic within 2σ explains the excess, or why nothing can be said
    */
   public record Result(long observed, double expected, double statError, double systError, double totalError,
-      double zStatOnly, double zWithSystematics, List<Row> rows, String verdict) {}
+      double zStatOnly, double zWithSystematics, List<Row> rows, boolean positiveYield, String verdict) {}
 
   /** A systematic's ±1σ yields. */
   public record Shift(String name, String kind, double up, double down) {}
 
   /** Summarises an observed count against its nominal expectation and the shifted expectations. */
   public static Result summarise(long n, double b, double statError, List<Shift> shifts) {
+    boolean positive = b > 0;
     List<Row> rows = new ArrayList<>();
     double syst2 = 0;
     String worst = null;
@@ -69,7 +76,7 @@ public final class Stress {
       double sigma = Math.max(Math.abs(s.up() - b), Math.abs(s.down() - b));
       syst2 += sigma * sigma;
       double raise = Math.max(s.up() - b, s.down() - b);
-      double pull = n <= b ? Double.NaN : raise > 0 ? (n - b) / raise : Double.POSITIVE_INFINITY;
+      double pull = !positive || n <= b ? Double.NaN : raise > 0 ? (n - b) / raise : Double.POSITIVE_INFINITY;
       rows.add(new Row(s.name(), s.kind(), s.up(), s.down(), sigma, pull));
       if (pull < smallest) {
         smallest = pull;
@@ -81,7 +88,11 @@ public final class Stress {
     double zStat = b > 0 && statError > 0 ? CountingSignificance.zBiFromBackground(n, b, statError).z() : Double.NaN;
     double zAll = b > 0 && total > 0 ? CountingSignificance.zBiFromBackground(n, b, total).z() : Double.NaN;
     String verdict;
-    if (n <= b) {
+    if (!positive) {
+      verdict = String.format(java.util.Locale.ROOT, "%s (expected %.4g): no significance, and no pull can "
+          + "explain an excess over it", statError > 0 ? "the selected reference weights do not sum to a positive "
+          + "yield" : "no reference weight is selected", b);
+    } else if (n <= b) {
       verdict = "no excess to explain";
     } else if (shifts.isEmpty()) {
       verdict = "no systematics declared: the spec's variations and scales are empty";
@@ -93,7 +104,7 @@ public final class Stress {
           + "is %s (%s)", Double.isInfinite(smallest) ? "infinite" : String.format(java.util.Locale.ROOT, "%.1fσ",
           smallest), worst);
     }
-    return new Result(n, b, statError, syst, total, zStat, zAll, rows, verdict);
+    return new Result(n, b, statError, syst, total, zStat, zAll, rows, positive, verdict);
   }
 
   /**

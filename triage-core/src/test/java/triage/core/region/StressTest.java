@@ -2,6 +2,7 @@ package triage.core.region;
 
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.util.List;
@@ -34,6 +35,27 @@ class StressTest {
     assertEquals(2.0 / 1.5, r.rows().get(0).pullToExplain(), 1e-12);
     assertTrue(r.verdict().startsWith("a 1.3σ pull of scale alone"), r.verdict());
     assertEquals("no excess to explain", Stress.summarise(8, 10, 0.5, List.of()).verdict());
+  }
+
+  @Test
+  void aYieldThatIsNotPositiveGetsNoSignificanceNoPullsAndNoVerdictOnTheSystematics() {
+    // The review's case: n = 1 over b = −0.02355 ± 0.02355 (one reference event of negative weight); before, the
+    // pulls were (1 + 0.02355)/0.00026 = 3930σ and "no single systematic explains it". A pull in units of a shift of
+    // a non-positive yield measures nothing, as select gives no significance there.
+    Stress.Result r = Stress.summarise(1, -0.02355, 0.02355, List.of(new Stress.Shift("gain", "weights", -0.02329,
+        -0.02381), new Stress.Shift("eff", "weights", -0.02472, -0.02260)));
+    assertFalse(r.positiveYield());
+    assertTrue(Double.isNaN(r.zStatOnly()) && Double.isNaN(r.zWithSystematics()), r.toString());
+    for (Stress.Row row : r.rows()) {
+      assertTrue(Double.isNaN(row.pullToExplain()), row.toString());
+    }
+    assertTrue(r.verdict().startsWith("the selected reference weights do not sum to a positive yield"), r.verdict());
+    assertFalse(r.verdict().contains("systematic explains"), r.verdict());
+    Stress.Result none = Stress.summarise(3, 0, 0, List.of(new Stress.Shift("s", "scale", 0.5, 0)));
+    assertFalse(none.positiveYield());
+    assertTrue(Double.isNaN(none.rows().get(0).pullToExplain()));
+    assertTrue(none.verdict().startsWith("no reference weight is selected"), none.verdict());
+    assertTrue(Stress.summarise(3, 1, 0.1, List.of()).positiveYield());
   }
 
   @Test
