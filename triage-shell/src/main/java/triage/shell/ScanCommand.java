@@ -59,12 +59,18 @@ public final class ScanCommand implements Callable<Integer> {
       EventStore.SelectedRows ref = store.rows(reference, List.of(column), triage.index.Selection.all());
       o.say("%-12s %9s %12s %10s %10s %8s", "f > c", "observed", "expected", "MC error", "excess", "local Z");
       List<Map<String, Object>> rows = new ArrayList<>();
+      Map<String, List<ThresholdScan.Row>> without = new LinkedHashMap<>();
       for (ThresholdScan.Row r : ThresholdScan.scan(f, ref.columns()[0], ref.weights(), steps)) {
         double b = r.expected();
         double err = r.expectedError();
         long n = r.observed();
-        double z = b > 0 && err > 0 ? CountingSignificance.zBiFromBackground(n, b, err).z() : Double.NaN;
-        o.say("%-12.5g %9d %12.5g %10.3g %10.4g %8.2f", r.threshold(), n, b, err, n - b, z);
+        String reason = r.noSignificance();
+        double z = reason == null ? CountingSignificance.zBiFromBackground(n, b, err).z() : Double.NaN;
+        if (reason != null) {
+          without.computeIfAbsent(reason, k -> new ArrayList<>()).add(r);
+        }
+        o.say("%-12.5g %9d %12.5g %10.3g %10.4g %8s", r.threshold(), n, b, err, n - b, reason == null
+            ? String.format(java.util.Locale.ROOT, "%.2f", z) : "-");
         Map<String, Object> row = new LinkedHashMap<>();
         row.put("threshold", r.threshold());
         row.put("observed", n);
@@ -72,7 +78,25 @@ public final class ScanCommand implements Callable<Integer> {
         row.put("expectedStatError", err);
         row.put("excess", n - b);
         row.put("localZBi", z);
+        row.put("noSignificance", reason);
         rows.add(row);
+      }
+      List<String> notes = new ArrayList<>();
+      for (var e : without.entrySet()) {
+        List<ThresholdScan.Row> rs = e.getValue();
+        ThresholdScan.Row first = rs.get(0);
+        ThresholdScan.Row last = rs.get(rs.size() - 1);
+        String where = rs.size() == 1
+            ? String.format(java.util.Locale.ROOT, "f > %.5g (%d observed events)", first.threshold(), first.observed())
+            : String.format(java.util.Locale.ROOT, "%d thresholds, f > %.5g … %.5g (%d … %d observed events)",
+                rs.size(), first.threshold(), last.threshold(), first.observed(), last.observed());
+        notes.add(String.format(java.util.Locale.ROOT, "local Z '-' at %s: %s; no significance can be given%s",
+            where, e.getKey(), first.expectedError() > 0 ? "" : String.format(java.util.Locale.ROOT, ". The "
+            + "reference has no events with scores this high: look at those events themselves (triage events "
+            + "--where \"%s > %.5g\")", column, first.threshold())));
+      }
+      for (String note : notes) {
+        o.say("note: %s", note);
       }
       o.say("note: local significances; the best threshold of a scan is biased upwards and a region chosen here "
           + "must be confirmed on independent data (triage region, then triage followup).");
@@ -82,6 +106,7 @@ public final class ScanCommand implements Callable<Integer> {
       result.put("index", index.toString());
       result.put("column", column);
       result.put("rows", rows);
+      result.put("notes", notes);
       result.put("cautions", SelectCommand.CAUTIONS);
       o.result(result);
     }

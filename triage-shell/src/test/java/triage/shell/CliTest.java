@@ -529,6 +529,48 @@ class CliTest {
     assertTrue(pairs.get(0).get("jensenShannon").asDouble() > 0, rank.out());
   }
 
+  /**
+   * A scan row with nothing expected (review: "121 observed, 0.0000 expected, local Z NaN" without a word): '-'
+   * and a note saying why, `noSignificance` in JSON. External scores: observed 0..199, reference 0..119, so the
+   * top thresholds (the 0.99 quantile is 198) have no reference event above them (by hand).
+   */
+  @Test
+  void scanSaysWhyARowHasNoSignificance() throws IOException {
+    StringBuilder ref = new StringBuilder("event,x,s,w\n");
+    StringBuilder obs = new StringBuilder("event,x,s\n");
+    for (int i = 0; i < 120; i++) {
+      ref.append(i).append(",1,").append(i).append(",1\n");
+    }
+    for (int i = 0; i < 200; i++) {
+      obs.append(i).append(",1,").append(i).append('\n');
+    }
+    Files.writeString(dir.resolve("ref.csv"), ref);
+    Files.writeString(dir.resolve("obs.csv"), obs);
+    Files.writeString(dir.resolve("spec.json"), """
+        {"format": "triage-samples/1", "columns": {"features": ["x"], "id": "event", "score": "s"},
+         "samples": [{"name": "reference", "role": "reference", "file": "ref.csv", "weight": "w"},
+                     {"name": "observed", "role": "observed", "file": "obs.csv"}]}
+        """);
+    Path index = dir.resolve("index");
+    Run ingest = run("ingest", "--index", index.toString(), "--spec", dir.resolve("spec.json").toString());
+    assertEquals(0, ingest.code(), ingest.err());
+    Run human = run("scan", "--index", index.toString(), "--steps", "5");
+    assertEquals(0, human.code(), human.err());
+    assertFalse(human.out().contains("NaN"), human.out());
+    assertTrue(human.out().contains("no reference weight lies above the threshold, so nothing is expected there; no "
+        + "significance can be given"), human.out());
+    Run scan = run("scan", "--index", index.toString(), "--steps", "5", "--json");
+    assertEquals(0, scan.code(), scan.err());
+    JsonNode j = JSON.readTree(scan.out());
+    JsonNode rows = j.get("rows");
+    assertTrue(rows.get(0).get("noSignificance").isNull(), scan.out());
+    JsonNode last = rows.get(rows.size() - 1);
+    assertEquals(198, last.get("threshold").asDouble());
+    assertEquals("NaN", last.get("localZBi").asText());
+    assertTrue(last.get("noSignificance").asText().startsWith("no reference weight"), scan.out());
+    assertTrue(j.get("notes").get(0).asText().contains("triage events --where"), scan.out());
+  }
+
   @Test
   void regionIsFrozenAndFollowedUpWithTheOverlapGuard() throws IOException {
     Path index = ingestSamples();

@@ -24,7 +24,24 @@ public final class ThresholdScan {
    * @param expected Σw of the reference above it
    * @param expectedError √Σw²
    */
-  public record Row(double threshold, long observed, double expected, double expectedError) {}
+  public record Row(double threshold, long observed, double expected, double expectedError) {
+    /**
+     * Why this row can have no significance, or null when it can: no reference weight above the threshold
+     * ({@code Σw² = 0}: nothing is expected, so any observed event is "infinitely" significant and no finite Z
+     * means anything), or reference weights that sum to zero or less (negative weights).
+     *
+     * @return the reason, one phrase, or null
+     */
+    public String noSignificance() {
+      if (!(expectedError > 0)) {
+        return "no reference weight lies above the threshold, so nothing is expected there";
+      }
+      if (!(expected > 0)) {
+        return "the reference weights above the threshold sum to zero or less (negative weights), not a positive yield";
+      }
+      return null;
+    }
+  }
 
   /**
    * The scan.
