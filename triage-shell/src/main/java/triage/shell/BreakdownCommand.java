@@ -121,6 +121,7 @@ public final class BreakdownCommand implements Callable<Integer> {
       String observed = Roles.name(m, Role.OBSERVED);
       String reference = Roles.name(m, Role.REFERENCE);
       List<Row> rows = new ArrayList<>();
+      String keyedBy = by;
       if (column.kind() == ColumnKind.CATEGORY) {
         TreeSet<String> values = new TreeSet<>();
         values.addAll(m.sample(observed).categories().get(by));
@@ -135,22 +136,29 @@ public final class BreakdownCommand implements Callable<Integer> {
               all));
         }
       } else {
-        TreeMap<Long, double[]> acc = new TreeMap<>();
+        // A block is a luminosity block, numbered within its run (README, docs/sample-spec.md): block 137 of one
+        // run has nothing to do with block 137 of another, so blocks are keyed by (run, block) when the index has
+        // a run column (until 2026-12-04 they were pooled by number across runs).
+        String runColumn = column.kind() == ColumnKind.BLOCK ? runColumn(m) : null;
+        TreeMap<Key, double[]> acc = new TreeMap<>();
         BitSet om = store.mask(selection, observed);
         double[] ov = store.columns(observed, List.of(by))[0];
+        double[] orun = runColumn != null ? store.columns(observed, List.of(runColumn))[0] : null;
         for (int i = 0; i < ov.length; i++) {
-          double[] a = acc.computeIfAbsent((long) ov[i], k -> new double[4]);
+          double[] a = acc.computeIfAbsent(Key.of(orun, ov, i), k -> new double[4]);
           a[3]++;
           a[0] += om.get(i) ? 1 : 0;
         }
         BitSet rm = store.mask(selection, reference);
         double[] rv = store.columns(reference, List.of(by))[0];
+        double[] rrun = runColumn != null ? store.columns(reference, List.of(runColumn))[0] : null;
         double[] w = store.weights(reference);
         // compensated sums per value, as everywhere else (plain += gave 152.4999999999999 for 152.5)
-        java.util.Map<Long, triage.core.stats.NeumaierSum[]> sums = new java.util.HashMap<>();
+        java.util.Map<Key, triage.core.stats.NeumaierSum[]> sums = new java.util.HashMap<>();
         for (int i = rm.nextSetBit(0); i >= 0; i = rm.nextSetBit(i + 1)) {
-          acc.computeIfAbsent((long) rv[i], k -> new double[4]);
-          triage.core.stats.NeumaierSum[] s = sums.computeIfAbsent((long) rv[i],
+          Key key = Key.of(rrun, rv, i);
+          acc.computeIfAbsent(key, k -> new double[4]);
+          triage.core.stats.NeumaierSum[] s = sums.computeIfAbsent(key,
               k -> new triage.core.stats.NeumaierSum[] {new triage.core.stats.NeumaierSum(),
                   new triage.core.stats.NeumaierSum()});
           s[0].add(w[i]);
@@ -160,7 +168,8 @@ public final class BreakdownCommand implements Callable<Integer> {
           acc.get(k)[1] = s[0].value();
           acc.get(k)[2] = s[1].value();
         });
-        acc.forEach((k, a) -> rows.add(new Row(String.valueOf(k), (long) a[0], a[1], a[2], (long) a[3])));
+        acc.forEach((k, a) -> rows.add(new Row(k.toString(), (long) a[0], a[1], a[2], (long) a[3])));
+        keyedBy = runColumn != null ? runColumn + ":" + by : by;
       }
       long totalN = rows.stream().mapToLong(Row::observed).sum();
       double totalB = rows.stream().mapToDouble(Row::expected).sum();
@@ -185,8 +194,9 @@ public final class BreakdownCommand implements Callable<Integer> {
         top3 += sorted.get(i).observed() - sorted.get(i).expected();
       }
       o.say("selection  %s, broken down by %s (%d values): observed %d of %d, expected %.4g, excess %+.4g",
-          where, by, rows.size(), totalN, totalAll, totalB, excess);
-      o.say("  %-14s %9s %11s %10s %8s %8s %6s", by, "observed", "expected", "excess", "local Z", "share",
+          where, keyedBy.equals(by) ? by : by + " within its run (" + keyedBy + ")", rows.size(), totalN, totalAll,
+          totalB, excess);
+      o.say("  %-14s %9s %11s %10s %8s %8s %6s", keyedBy, "observed", "expected", "excess", "local Z", "share",
           "pull");
       List<Map<String, Object>> out = new ArrayList<>();
       for (int i = 0; i < sorted.size(); i++) {
@@ -219,9 +229,19 @@ public final class BreakdownCommand implements Callable<Integer> {
           + "G = %.1f for %d dof, p %s (G: %s)", totalAll > 0 ? (double) totalN / totalAll : Double.NaN, by,
           share.pearson(), share.g(), share.dof(), Output.pEquals(share.pearsonP()), Output.p(share.gP()));
       o.say("observed/expected the same in every %s? χ² = %.1f for %d dof, p %s; the top %d value%s hold%s "
-          + "%.0f%% of the excess", by, chi2, Math.max(0, k - 1), Output.pEquals(p), Math.min(3, sorted.size()),
-          sorted.size() == 1 ? "" : "s", sorted.size() == 1 ? "s" : "", excess != 0 ? 100 * top3 / excess
-          : Double.NaN);
+          + "%.0f%% of the excess", by, chi2, Math.max(0, k - 1), Double.isNaN(p) ? "-" : Output.pEquals(p),
+          Math.min(3, sorted.size()), sorted.size() == 1 ? "" : "s", sorted.size() == 1 ? "s" : "",
+          excess != 0 ? 100 * top3 / excess : Double.NaN);
+      if (h.leftOut() > 0) {
+        o.say("  left out of that ratio test: %d value%s without reference weight or whose reference weights sum "
+            + "to zero or less (no positive expectation to compare with), holding %d observed event%s", h.leftOut(), h.leftOut() == 1 ? "" : "s",
+            h.observedLeftOut(), h.observedLeftOut() == 1 ? "" : "s");
+      }
+      if (h.sparse()) {
+        o.say("  sparse: median expected %.2g events per value (r·b), more than a fifth of them below 5 or some below "
+            + "1: the χ² approximation does not hold, so that p is a guide only (merge values%s)",
+            h.medianExpected(), column.kind() == ColumnKind.BLOCK ? ", e.g. --by run" : "");
+      }
       List<String> worst = new ArrayList<>();
       rows.stream().filter(r -> pullOf.get(r.value()) > 3).sorted((a, b) -> Double.compare(pullOf.get(b.value()),
           pullOf.get(a.value()))).limit(5).forEach(r -> worst.add(r.value()));
@@ -237,7 +257,7 @@ public final class BreakdownCommand implements Callable<Integer> {
         o.say("sparse table (%d selected over %d values): share p = %.3g from %d Monte Carlo tables (seed %d)",
             totalN, used, shareP, MONTE_CARLO_TABLES, MONTE_CARLO_SEED);
       }
-      String verdict = verdict(shareP, sparse ? Double.NaN : p, worst, by);
+      String verdict = verdict(shareP, p, !h.sparse(), h.observedLeftOut(), worst, by);
       o.say("verdict    %s", verdict);
       Map<String, Object> result = new LinkedHashMap<>();
       if (column.kind() == ColumnKind.RUN && rows.size() > 1) {
@@ -285,6 +305,11 @@ public final class BreakdownCommand implements Callable<Integer> {
       result.put("homogeneityChi2", chi2);
       result.put("homogeneityDof", Math.max(0, k - 1));
       result.put("homogeneityP", p);
+      result.put("homogeneitySparse", h.sparse());
+      result.put("homogeneityMedianExpected", h.medianExpected());
+      result.put("homogeneityLeftOut", h.leftOut());
+      result.put("homogeneityObservedLeftOut", h.observedLeftOut());
+      result.put("keyedBy", keyedBy);
       result.put("concentratedIn", worst);
       result.put("verdict", verdict);
       result.put("values", out);
@@ -298,22 +323,61 @@ public final class BreakdownCommand implements Callable<Integer> {
 
   /**
    * One line: whether the selection is concentrated in some values of the column. Concentrated when the share
-   * test or the observed/expected test has p &lt; 0.001 (common practice, no source, for a flag meant to send the
-   * analyst to look); the values with a share pull above 3 are named.
+   * test or a reliable observed/expected test has p &lt; 0.001 (common practice, no source, for a flag meant to
+   * send the analyst to look); the values with a share pull above 3 are named. "Spread evenly" only when nothing
+   * speaks against it: an observed/expected test that fails on a sparse table (p &lt; 0.05, its χ² approximation
+   * unreliable), or observed events in values left out of that test, are said instead.
+   *
+   * @param shareP the share test's p-value (Monte Carlo on sparse tables)
+   * @param ratioP the observed/expected test's p-value (NaN when not computed)
+   * @param ratioReliable false when that test's table is too sparse for its χ² approximation
+   * @param observedLeftOut observed events in values left out of that test (no positive expectation)
    */
-  static String verdict(double shareP, double ratioP, List<String> worst, String by) {
+  static String verdict(double shareP, double ratioP, boolean ratioReliable, long observedLeftOut,
+      List<String> worst, String by) {
     if (Double.isNaN(shareP)) {
       return "no test (fewer than two values with events, or nothing or everything selected)";
     }
-    if (shareP < 1e-3 || (!Double.isNaN(ratioP) && ratioP < 1e-3)) {
+    String ratio = Double.isNaN(ratioP) ? "" : ", observed/expected p " + pText(ratioP)
+        + (ratioReliable ? "" : " from a sparse table, a guide only");
+    if (shareP < 1e-3 || (ratioReliable && ratioP < 1e-3)) {
       return "concentrated" + (worst.isEmpty() ? "" : " in " + by + " " + String.join(", ", worst))
-          + ": look for a detector or data-taking cause (share p " + pText(shareP) + ")";
+          + ": look for a detector or data-taking cause (share p " + pText(shareP) + ratio + ")";
     }
-    if (shareP < 0.05) {
-      return "somewhat uneven (share p " + pText(shareP) + ")"
+    if (shareP < 0.05 || ratioP < 0.05) {
+      return "somewhat uneven (share p " + pText(shareP) + ratio + ")"
           + (worst.isEmpty() ? "" : ", most in " + by + " " + String.join(", ", worst)) + ": look closer";
     }
-    return "spread evenly (share p " + pText(shareP) + "), as a real effect would be";
+    if (observedLeftOut > 0) {
+      return "share spread evenly (share p " + pText(shareP) + ratio + "), but " + observedLeftOut + " observed "
+          + "event" + (observedLeftOut == 1 ? " lies" : "s lie") + " in values with no positive expectation, "
+          + "outside the observed/expected test: look at them";
+    }
+    return "spread evenly (share p " + pText(shareP) + ratio + "), as a real effect would be";
+  }
+
+  /** A value of the column: a number, or (run, block) for blocks, which are numbered within their run. */
+  private record Key(long run, long value, boolean withRun) implements Comparable<Key> {
+    static Key of(double[] runs, double[] values, int i) {
+      return new Key(runs == null ? 0 : (long) runs[i], (long) values[i], runs != null);
+    }
+
+    @Override
+    public int compareTo(Key o) {
+      int c = Long.compare(run, o.run);
+      return c != 0 ? c : Long.compare(value, o.value);
+    }
+
+    @Override
+    public String toString() {
+      return withRun ? run + ":" + value : String.valueOf(value);
+    }
+  }
+
+  /** The index's run column, or null. */
+  private static String runColumn(Manifest m) {
+    return m.columns().stream().filter(c -> c.kind() == ColumnKind.RUN).map(Manifest.Column::name).findFirst()
+        .orElse(null);
   }
 
   /** "= 0.0012", or "< 1e-16" where the double's tail has no digits left. */

@@ -934,6 +934,65 @@ class CliTest {
     assertEquals(ExitCodes.INPUT, bad.code());
   }
 
+  /**
+   * Review of breakdown: blocks are numbered within their run (README: luminosity blocks), so they are keyed by
+   * (run, block), not pooled by number across runs; values with no positive expectation are never dropped from
+   * the ratio test silently; a sparse ratio test is marked and the verdict does not call the selection "spread
+   * evenly" while observed events sit outside the test. By hand: reference blocks 1:1, 1:2, 2:1 with 4 events of
+   * weight 1, block 2:2 with one of weight −0.5; observed 4, 4, 4, 3 events of which x > 0 keeps 3, 3, 3, 2. The
+   * ratio test uses the first three (r = 9/12, r·b = 3 each: χ² = 0, every value below 5 expected: sparse) and
+   * leaves out 2:2 with its 2 selected events. Pooled by number, block 2 would have been 1:2 and 2:2 together.
+   */
+  @Test
+  void breakdownByBlockKeysOnRunAndBlockAndDropsNothingSilently() throws IOException {
+    StringBuilder ref = new StringBuilder("event,run,block,x,w\n");
+    StringBuilder obs = new StringBuilder("event,run,block,x\n");
+    int id = 0;
+    for (int[] rb : new int[][] {{1, 1}, {1, 2}, {2, 1}}) {
+      for (int i = 0; i < 4; i++) {
+        ref.append(id++).append(',').append(rb[0]).append(',').append(rb[1]).append(",1,1\n");
+      }
+    }
+    ref.append(id++).append(",2,2,1,-0.5\n");
+    for (int[] rb : new int[][] {{1, 1, 3}, {1, 2, 3}, {2, 1, 3}, {2, 2, 2}}) {
+      for (int i = 0; i <= rb[2]; i++) {
+        obs.append(id++).append(',').append(rb[0]).append(',').append(rb[1]).append(i == 0 ? ",-1\n" : ",1\n");
+      }
+    }
+    Files.writeString(dir.resolve("ref.csv"), ref);
+    Files.writeString(dir.resolve("obs.csv"), obs);
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "x", "--weight", "w", "--id", "event",
+        "--run", "run", "--block", "block", "--allow-negative-weights").code());
+    Run r = run("breakdown", "--index", index.toString(), "--where", "x > 0", "--by", "block", "--json");
+    assertEquals(0, r.code(), r.err());
+    JsonNode j = JSON.readTree(r.out());
+    assertEquals("run:block", j.get("keyedBy").asText());
+    java.util.Set<String> values = new java.util.TreeSet<>();
+    j.get("values").forEach(v -> values.add(v.get("value").asText()));
+    assertEquals(java.util.Set.of("1:1", "1:2", "2:1", "2:2"), values);
+    assertEquals(0, j.get("homogeneityChi2").asDouble(), 1e-12);
+    assertEquals(2, j.get("homogeneityDof").asInt());
+    assertEquals(1, j.get("homogeneityLeftOut").asInt());
+    assertEquals(2, j.get("homogeneityObservedLeftOut").asLong());
+    assertTrue(j.get("homogeneitySparse").asBoolean());
+    assertEquals(3, j.get("homogeneityMedianExpected").asDouble(), 1e-12);
+    assertFalse(j.get("verdict").asText().startsWith("spread evenly"), j.get("verdict").asText());
+    assertTrue(j.get("verdict").asText().contains("2 observed events lie in values with no positive expectation"),
+        j.get("verdict").asText());
+    Run human = run("breakdown", "--index", index.toString(), "--where", "x > 0", "--by", "block");
+    assertTrue(human.out().contains("left out of that ratio test: 1 value without reference weight or whose "
+        + "reference weights sum to zero or less (no positive expectation to compare with), holding 2 observed "
+        + "events"), human.out());
+    assertTrue(human.out().contains("sparse: median expected 3.0 events per value"), human.out());
+    // A failed ratio test on a sparse table is not ignored (it was: "spread evenly"), nor trusted as a reliable one.
+    assertTrue(BreakdownCommand.verdict(0.5, 1e-5, false, 0, java.util.List.of(), "block")
+        .startsWith("somewhat uneven (share p = 0.50, observed/expected p = 1.0e-05 from a sparse table"));
+    assertTrue(BreakdownCommand.verdict(0.5, 1e-5, true, 0, java.util.List.of(), "block").startsWith("concentrated"));
+    assertTrue(BreakdownCommand.verdict(0.5, 0.5, true, 0, java.util.List.of(), "block").startsWith("spread evenly"));
+  }
+
   @Test
   void exportWritesTheSelectedEventsBackExactly() throws IOException {
     Path index = ingestSamples();

@@ -28,6 +28,42 @@ class HomogeneityTest {
     assertEquals(0, h.statistic(), 1e-12);
     assertEquals(1, h.dof());
     assertEquals(1, h.pValue(), 1e-12);
+    // ... and never silently: one group left out, with its 5 observed events
+    assertEquals(1, h.leftOut());
+    assertEquals(5, h.observedLeftOut());
+    assertEquals(false, h.sparse());
+    assertEquals(10, h.medianExpected(), 1e-12);
+  }
+
+  @Test
+  void negativeYieldsAreLeftOutAndCountedAndSparseGroupsAreMarked() {
+    // n = (2, 1, 0, 3, 4), b = (1, 2, 1, −0.5, 0) with σ² = (0.1, 0.1, 0.1, 0.3, 0): the last two are left out
+    // (b ≤ 0) with 3 + 4 = 7 observed events; r = 3/4, fitted r b = (0.75, 1.5, 0.75), median 0.75; every one is
+    // below 5 (and two below 1), so the χ² approximation is not to be trusted: sparse (by hand).
+    Homogeneity h = Homogeneity.of(new long[] {2, 1, 0, 3, 4}, new double[] {1, 2, 1, -0.5, 0},
+        new double[] {0.1, 0.1, 0.1, 0.3, 0});
+    assertEquals(2, h.dof());
+    assertEquals(2, h.leftOut());
+    assertEquals(7, h.observedLeftOut());
+    assertTrue(h.sparse());
+    assertEquals(0.75, h.medianExpected(), 1e-12);
+    // by hand: var_i = r b_i + r² σ_i² = (0.80625, 1.55625, 0.80625); χ² = 1.25²/0.80625 + 0.5²/1.55625
+    // + 0.75²/0.80625
+    assertEquals(1.5625 / 0.80625 + 0.25 / 1.55625 + 0.5625 / 0.80625, h.statistic(), 1e-12);
+    // 8 groups of 10 expected each: not sparse; 3 of 8 below 5 (more than a fifth): sparse
+    assertEquals(false, Homogeneity.of(new long[] {10, 10, 10, 10, 10, 10, 10, 10}, filled(8, 10, 0),
+        new double[8]).sparse());
+    double[] b = filled(8, 10, 3);
+    assertTrue(Homogeneity.of(new long[] {10, 10, 10, 10, 10, 2, 2, 2}, b, new double[8]).sparse());
+  }
+
+  /** n values: the first n − low equal to high, the rest to 2 (or all equal to high when low is 0). */
+  private static double[] filled(int n, double high, int low) {
+    double[] v = new double[n];
+    for (int i = 0; i < n; i++) {
+      v[i] = i < n - low ? high : 2;
+    }
+    return v;
   }
 
   /**
