@@ -109,8 +109,15 @@ public final class HistCommand implements Callable<Integer> {
           lo = Math.min(lo, values[i]);
           hi = Math.max(hi, values[i]);
         }
+        if (mask.isEmpty()) {
+          // no range to derive: before, 20 empty bins on an invented [0, 1) were drawn without a word
+          long refSelected = store.sums(selection).get(ref).count();
+          throw new triage.core.sample.InputException(null, String.format(java.util.Locale.ROOT, "hist: the "
+              + "selection keeps no %s event (and %d %s events), so no range can be derived from the data; give "
+              + "--range LO:HI to see the expectation there", name, refSelected, m.samples().get(ref).name()));
+        }
         if (!(lo < hi)) {
-          lo = Double.isFinite(lo) ? lo - 0.5 : 0;
+          lo = lo - 0.5;
           hi = lo + 1;
         }
         hi = Math.nextUp(hi);
@@ -159,6 +166,23 @@ public final class HistCommand implements Callable<Integer> {
       }
       o.say("outside the range: observed %d below, %d above; expected %.4g below, %.4g above", ho.counts()[0],
           ho.counts()[bins + 1], hr.sumOfWeights()[0], hr.sumOfWeights()[bins + 1]);
+      List<String> notes = new ArrayList<>();
+      long observedIn = 0;
+      double squaresIn = 0;
+      for (int i = 1; i <= bins; i++) {
+        observedIn += ho.counts()[i];
+        squaresIn += hr.sumOfSquaredWeights()[i];
+      }
+      if (observedIn == 0 && squaresIn == 0) {
+        long outside = ho.counts()[0] + ho.counts()[bins + 1];
+        notes.add(String.format(java.util.Locale.ROOT, "no event of the selection lies in [%s, %s), observed "
+            + "or reference: every bin is empty and its ratio and pull undefined%s", lo, hi, outside > 0
+            ? " (the " + outside + " observed events of the selection lie outside: see the line above)"
+            : range != null && where != null ? " (and the selection keeps no observed event at all)" : ""));
+      }
+      for (String note : notes) {
+        o.say("note: %s", note);
+      }
       List<String> plots = new ArrayList<>();
       if (png != null || svg != null) {
         var chart = HistogramChart.chart(column + (where == null ? "" : " for " + where), column, edges, n, b, pulls);
@@ -184,6 +208,7 @@ public final class HistCommand implements Callable<Integer> {
       result.put("underflow", Map.of("observed", ho.counts()[0], "expected", hr.sumOfWeights()[0]));
       result.put("overflow", Map.of("observed", ho.counts()[bins + 1], "expected", hr.sumOfWeights()[bins + 1]));
       result.put("plots", plots);
+      result.put("notes", notes);
       o.result(result);
     }
     return ExitCodes.OK;

@@ -57,6 +57,7 @@ public final class SelectCommand implements Callable<Integer> {
     try (EventStore store = EventStore.open(index)) {
       Manifest m = store.manifest();
       Selection selection = store.where(where);
+      unknownCategoryValues(o, m, store.kinds(), where);
       List<SampleSums> sums = store.sums(selection);
       List<String> variations = m.spec().variations().stream().map(v -> v.name()).toList();
       o.say("selection  %s", where);
@@ -157,6 +158,33 @@ public final class SelectCommand implements Callable<Integer> {
     }
     j.put("variations", vs);
     out.add(j);
+  }
+
+  /**
+   * Warns (stderr) about a quoted category value that no sample of the index holds: a typo such as
+   * {@code sector = 'Z'} selects nothing (or, with {@code <>}, everything) without an error, so the known values
+   * are named.
+   */
+  static void unknownCategoryValues(Output o, Manifest m, Map<String, triage.core.select.Where.Kind> kinds,
+      String where) {
+    var named = triage.core.select.Where.categoryValues(triage.core.select.Where.parse(where, kinds), kinds);
+    for (var e : named.entrySet()) {
+      java.util.TreeSet<String> known = new java.util.TreeSet<>();
+      for (Manifest.Sample s : m.samples()) {
+        List<String> values = s.categories() == null ? null : s.categories().get(e.getKey());
+        if (values != null) {
+          known.addAll(values);
+        }
+      }
+      List<String> unknown = e.getValue().stream().filter(v -> !known.contains(v)).toList();
+      if (!unknown.isEmpty()) {
+        List<String> shown = known.stream().limit(30).map(v -> "'" + v + "'").toList();
+        o.note("warning: %s %s: no sample holds %s; the values that occur are %s%s", e.getKey(),
+            unknown.size() == 1 ? "value" : "values", String.join(", ", unknown.stream().map(v -> "'" + v + "'")
+            .toList()), String.join(", ", shown), known.size() > shown.size() ? " … (" + known.size() + " in all)"
+            : "");
+      }
+    }
   }
 
   private static int index(Manifest m, Role role) {

@@ -993,6 +993,54 @@ class CliTest {
     assertTrue(BreakdownCommand.verdict(0.5, 0.5, true, 0, java.util.List.of(), "block").startsWith("spread evenly"));
   }
 
+  /**
+   * Empty or impossible selections (review: all passed without a word, exit 0): hist of an empty selection has no
+   * range to derive (it drew 20 NaN bins on an invented [0, 1)); a range with nothing in it says so; a category
+   * value no sample holds gets a warning naming the values that occur; a divisor of 0 is refused at parse time
+   * and a divisor that is 0 for an event does not select it (m / 0 > 1 selected every event). Fixture: the small
+   * samples (m 90…120.25, run 5 and 6), with a category column added.
+   */
+  @Test
+  void emptyAndImpossibleSelectionsAreSaidSo() throws IOException {
+    Path index = ingestSamples();
+    Run empty = run("hist", "--index", index.toString(), "--column", "m", "--where", "m > 10000");
+    assertEquals(ExitCodes.INPUT, empty.code(), empty.out());
+    assertTrue(empty.err().contains("the selection keeps no observed event (and 0 reference events), so no range "
+        + "can be derived from the data; give --range LO:HI"), empty.err());
+    Run nothingIn = run("hist", "--index", index.toString(), "--column", "m", "--range", "1000:2000", "--json");
+    assertEquals(0, nothingIn.code(), nothingIn.err());
+    JsonNode h = JSON.readTree(nothingIn.out());
+    assertTrue(h.get("notes").get(0).asText().startsWith("no event of the selection lies in [1000.0, 2000.0)"),
+        nothingIn.out());
+    assertTrue(h.get("notes").get(0).asText().contains("the 2 observed events of the selection lie outside"));
+    Run zero = run("select", "--index", index.toString(), "--where", "m / 0 > 1");
+    assertEquals(ExitCodes.INPUT, zero.code());
+    assertTrue(zero.err().contains("division by zero"), zero.err());
+    Run runtimeZero = run("select", "--index", index.toString(), "--where", "m / (run - 5) > 1", "--json");
+    assertEquals(0, runtimeZero.code(), runtimeZero.err());
+    // by hand: run 5 divides by 0 (not selected); run 6 gives m / 1 > 1: reference event 3, observed event 11
+    JsonNode cmp = JSON.readTree(runtimeZero.out()).get("comparisons").get(0);
+    assertEquals(1, cmp.get("observed").asLong());
+    assertEquals(2.0, cmp.get("expected").asDouble(), 0);
+  }
+
+  @Test
+  void anUnknownCategoryValueIsNamedWithTheKnownOnes() throws IOException {
+    Files.writeString(dir.resolve("ref.csv"), "event,m,sector,w\n1,100,A,1\n2,110,B,1\n");
+    Files.writeString(dir.resolve("obs.csv"), "event,m,sector\n10,101,A\n11,99,C\n");
+    Path index = dir.resolve("index");
+    assertEquals(0, run("ingest", "--index", index.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "m", "--weight", "w", "--category",
+        "sector").code());
+    Run r = run("select", "--index", index.toString(), "--where", "sector = 'Z' OR sector IN ('A', 'q')", "--json");
+    assertEquals(0, r.code(), r.err());
+    JSON.readTree(r.out());
+    assertTrue(r.err().contains("warning: sector values: no sample holds 'Z', 'q'; the values that occur are 'A', "
+        + "'B', 'C'"), r.err());
+    Run fine = run("select", "--index", index.toString(), "--where", "sector = 'C'");
+    assertFalse(fine.err().contains("warning"), fine.err());
+  }
+
   @Test
   void exportWritesTheSelectedEventsBackExactly() throws IOException {
     Path index = ingestSamples();

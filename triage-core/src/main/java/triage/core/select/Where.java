@@ -32,6 +32,10 @@ import java.util.function.ToIntFunction;
  * text ({@code sector IN ('10', '11')}); numeric columns with numbers. BETWEEN includes both ends. Arithmetic is in
  * double precision; a comparison involving NaN (e.g. {@code log} of a negative number) is false, and so is its
  * negation by NOT only where SQL would give unknown: here NOT of a false comparison is true (two-valued logic).
+ * Division by zero follows SQL: a divisor that is 0 when the condition is parsed (a number, or arithmetic on
+ * numbers only) is an error with its position; a divisor that is 0 for an event gives NULL, i.e. NaN here, so the
+ * comparison is false and the event is not selected (before 2026-12-04, {@code x / 0 > 1} was ±∞ and selected
+ * every event with x &gt; 0). docs/where.md has the language for users.
  */
 public final class Where {
   /** What a column holds. */
@@ -436,7 +440,14 @@ public final class Where {
       case Expr.Neg n -> number(n.operand(), columns, text, "'-'");
       case Expr.Arith a -> {
         number(a.left(), columns, text, "'" + a.op() + "'");
-        yield number(a.right(), columns, text, "'" + a.op() + "'");
+        Type t = number(a.right(), columns, text, "'" + a.op() + "'");
+        Double divisor = a.op() == '/' ? constant(a.right()) : null;
+        if (divisor != null && divisor == 0) {
+          // SQL: division by zero is an error; a divisor known now is refused now (a column's zero at run time
+          // gives NULL, see number())
+          throw new WhereException(text, a.right().pos(), "division by zero: this divisor is 0");
+        }
+        yield t;
       }
       case Expr.Call c -> {
         for (Expr arg : c.args()) {
@@ -527,6 +538,54 @@ public final class Where {
       throw new WhereException(text, 0, "expected a condition such as m_gj > 700, found a value");
     }
     return e;
+  }
+
+  /**
+   * The quoted values a checked condition compares each category column with ({@code =}, {@code <>}, {@code IN},
+   * {@code NOT IN}, anywhere in the condition): what a caller checks against the values the data hold, to warn
+   * about a value that does not occur (a typo selects nothing, or everything with {@code <>}, without an error).
+   *
+   * @param condition a condition from {@link #parse}
+   * @param columns what each column holds
+   * @return per category column, the values named for it, in the order first named
+   */
+  public static Map<String, Set<String>> categoryValues(Expr condition, Map<String, Kind> columns) {
+    Map<String, Set<String>> out = new LinkedHashMap<>();
+    collectCategoryValues(condition, columns, out);
+    return out;
+  }
+
+  private static void collectCategoryValues(Expr e, Map<String, Kind> columns, Map<String, Set<String>> out) {
+    switch (e) {
+      case Expr.And a -> {
+        collectCategoryValues(a.left(), columns, out);
+        collectCategoryValues(a.right(), columns, out);
+      }
+      case Expr.Or o -> {
+        collectCategoryValues(o.left(), columns, out);
+        collectCategoryValues(o.right(), columns, out);
+      }
+      case Expr.Not n -> collectCategoryValues(n.operand(), columns, out);
+      case Expr.Compare c -> {
+        if (c.left() instanceof Expr.Col col && columns.get(col.name()) == Kind.CATEGORY
+            && c.right() instanceof Expr.Str v) {
+          out.computeIfAbsent(col.name(), k -> new java.util.LinkedHashSet<>()).add(v.value());
+        } else if (c.right() instanceof Expr.Col col && columns.get(col.name()) == Kind.CATEGORY
+            && c.left() instanceof Expr.Str v) {
+          out.computeIfAbsent(col.name(), k -> new java.util.LinkedHashSet<>()).add(v.value());
+        }
+      }
+      case Expr.In in -> {
+        if (in.value() instanceof Expr.Col col && columns.get(col.name()) == Kind.CATEGORY) {
+          for (Expr item : in.items()) {
+            out.computeIfAbsent(col.name(), k -> new java.util.LinkedHashSet<>()).add(((Expr.Str) item).value());
+          }
+        }
+      }
+      default -> {
+        // numbers only
+      }
+    }
   }
 
   /** Splits a checked condition into a box and a residual; see {@link Plan}. */
@@ -777,7 +836,11 @@ public final class Where {
           case '+' -> v -> l.eval(v) + r.eval(v);
           case '-' -> v -> l.eval(v) - r.eval(v);
           case '*' -> v -> l.eval(v) * r.eval(v);
-          default -> v -> l.eval(v) / r.eval(v);
+          // SQL: x / 0 is NULL here (no error per row), so a comparison with it is false, as with NaN
+          default -> v -> {
+            double d = r.eval(v);
+            return d == 0 ? Double.NaN : l.eval(v) / d;
+          };
         };
       }
       case Expr.Call c -> {

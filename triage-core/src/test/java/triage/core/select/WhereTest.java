@@ -60,7 +60,12 @@ class WhereTest {
         Arguments.of("m NOT BETWEEN 600 AND 900", (Predicate<Event>) e -> !(e.m() >= 600 && e.m() <= 900)),
         Arguments.of("-m < -700 AND 700 < m + 1e1", (Predicate<Event>) e -> -e.m() < -700 && 700 < e.m() + 10),
         Arguments.of("m > 700 AND m < 600", (Predicate<Event>) e -> false),
-        Arguments.of("sector = '11' AND sector = '10'", (Predicate<Event>) e -> false));
+        Arguments.of("sector = '11' AND sector = '10'", (Predicate<Event>) e -> false),
+        // SQL: a divisor that is 0 for an event gives NULL, so the comparison does not select it (pt − pt is 0 for
+        // every event: before, m / 0 = +∞ selected them all); elsewhere the division is the plain one
+        Arguments.of("m / (pt - pt) > 1", (Predicate<Event>) e -> false),
+        Arguments.of("m / (run - 4117) > 200", (Predicate<Event>) e -> e.run() != 4117 && e.m() / (e.run() - 4117)
+            > 200));
   }
 
   /**
@@ -136,6 +141,15 @@ class WhereTest {
   }
 
   @Test
+  void categoryValuesNamedAnywhereAreListed() {
+    Expr e = Where.parse("(sector = '11' OR NOT '9' <> sector) AND sector NOT IN ('12', '11') AND m > 1",
+        COLUMNS);
+    assertEquals(Map.of("sector", Set.of("11", "9", "12")), Where.categoryValues(e, COLUMNS));
+    assertEquals(List.of("11", "9", "12"), List.copyOf(Where.categoryValues(e, COLUMNS).get("sector")));
+    assertTrue(Where.categoryValues(Where.parse("m > 1", COLUMNS), COLUMNS).isEmpty());
+  }
+
+  @Test
   void errorsPointAtThePlace() {
     WhereException e = fails("m > 700 AND mass < 3");
     assertEquals(12, e.position());
@@ -156,5 +170,11 @@ class WhereTest {
     assertTrue(fails("m > 7x").getMessage().contains("runs into a name"));
     assertTrue(fails("m > 1 & pt > 2").getMessage().contains("unexpected character '&'"));
     assertTrue(fails("   ").getMessage().contains("empty selection"));
+    // SQL: a divisor that is zero when the condition is parsed is an error, at the divisor
+    WhereException zero = fails("m / 0 > 1");
+    assertEquals(4, zero.position());
+    assertTrue(zero.getMessage().contains("division by zero"), zero.getMessage());
+    assertEquals(11, fails("m > 1 / (2 - 2)").position()); // at the divisor's operator
+    assertEquals(4, fails("m / -0.0 > 1").position());
   }
 }
