@@ -1041,6 +1041,22 @@ class CliTest {
     assertFalse(fine.err().contains("warning"), fine.err());
   }
 
+  /** A misspelt required key of the spec is named, at its value (review: "featurs" said "no feature columns"). */
+  @Test
+  void aMisspeltSpecKeyIsNamed() throws IOException {
+    writeSamples();
+    Files.writeString(dir.resolve("spec.json"), """
+        {"format": "triage-samples/1", "columns": {"featurs": ["m", "pt"], "id": "event"},
+         "samples": [{"name": "reference", "role": "reference", "file": "ref.csv", "weight": "w"},
+                     {"name": "observed", "role": "observed", "file": "obs.csv"}]}
+        """);
+    Run r = run("ingest", "--index", dir.resolve("index").toString(), "--spec", dir.resolve("spec.json").toString());
+    assertEquals(ExitCodes.INPUT, r.code(), r.err());
+    assertTrue(r.err().contains("spec.json:1:55: unknown field 'featurs', expected one of features, id, run, block, "
+        + "categories, score"), r.err());
+    assertFalse(r.err().contains("no feature columns"), r.err());
+  }
+
   @Test
   void exportWritesTheSelectedEventsBackExactly() throws IOException {
     Path index = ingestSamples();

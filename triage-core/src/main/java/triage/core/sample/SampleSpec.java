@@ -250,6 +250,12 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
       while (cause != null && !(cause instanceof UnknownField)) {
         cause = cause.getCause();
       }
+      if (cause == null) {
+        // A record's constructor checks its fields before Jackson reports the unknown ones it buffered, so a
+        // misspelt required key ("featurs") surfaced as the check's complaint ("no feature columns"): look for an
+        // unknown field first, since it is the likelier cause and the spec promises to name it.
+        cause = firstUnknownField(text);
+      }
       if (cause instanceof UnknownField u) {
         long[] place = u.line > 0 ? new long[] {u.line, u.column} : locateKey(text, u.field);
         throw new InputException(origin, place[0], place[1], u.getMessage(), null);
@@ -258,6 +264,64 @@ public record SampleSpec(String format, Columns columns, List<Variation> variati
       throw new InputException(origin, at == null ? 0 : at.getLineNr(), at == null ? 0 : at.getColumnNr(),
           "bad sample spec: " + plainWords(e), null);
     }
+  }
+
+  /**
+   * The first field, in text order, that no record of the spec knows (the spec, {@code columns}, and the entries of
+   * {@code variations}, {@code scales} and {@code samples}), with the place of its value; null when there is none
+   * or the text does not parse as far.
+   */
+  static UnknownField firstUnknownField(String text) {
+    try (com.fasterxml.jackson.core.JsonParser p = MAPPER.getFactory().createParser(text)) {
+      return p.nextToken() == com.fasterxml.jackson.core.JsonToken.START_OBJECT ? unknownIn(p, SampleSpec.class)
+          : null;
+    } catch (IOException | RuntimeException e) {
+      return null;
+    }
+  }
+
+  /** Scans one object (the parser on its start) against a record's components; see {@link #firstUnknownField}. */
+  private static UnknownField unknownIn(com.fasterxml.jackson.core.JsonParser p, Class<?> type) throws IOException {
+    java.util.Map<String, java.lang.reflect.RecordComponent> known = new java.util.LinkedHashMap<>();
+    for (java.lang.reflect.RecordComponent c : type.getRecordComponents()) {
+      known.put(c.getName(), c);
+    }
+    while (p.nextToken() == com.fasterxml.jackson.core.JsonToken.FIELD_NAME) {
+      String name = p.currentName();
+      com.fasterxml.jackson.core.JsonToken value = p.nextToken();
+      java.lang.reflect.RecordComponent c = known.get(name);
+      if (c == null) {
+        JsonLocation at = p.currentTokenLocation();
+        return new UnknownField(name, "unknown field '" + name + "', expected one of "
+            + String.join(", ", known.keySet()), at.getLineNr(), at.getColumnNr());
+      }
+      Class<?> inner = c.getType().isRecord() ? c.getType() : null;
+      if (inner == null && c.getGenericType() instanceof java.lang.reflect.ParameterizedType t
+          && t.getActualTypeArguments()[0] instanceof Class<?> e && e.isRecord()) {
+        inner = e;
+      }
+      if (inner != null && value == com.fasterxml.jackson.core.JsonToken.START_OBJECT) {
+        UnknownField u = unknownIn(p, inner);
+        if (u != null) {
+          return u;
+        }
+      } else if (inner != null && value == com.fasterxml.jackson.core.JsonToken.START_ARRAY) {
+        com.fasterxml.jackson.core.JsonToken item;
+        while ((item = p.nextToken()) != com.fasterxml.jackson.core.JsonToken.END_ARRAY && item != null) {
+          if (item == com.fasterxml.jackson.core.JsonToken.START_OBJECT) {
+            UnknownField u = unknownIn(p, inner);
+            if (u != null) {
+              return u;
+            }
+          } else {
+            p.skipChildren();
+          }
+        }
+      } else {
+        p.skipChildren();
+      }
+    }
+    return null;
   }
 
   /** What went wrong while reading a spec, in the spec's terms rather than the JSON library's. */
