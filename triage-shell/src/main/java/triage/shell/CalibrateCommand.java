@@ -280,8 +280,9 @@ public final class CalibrateCommand implements Callable<Integer> {
     Path file = c.folder().resolve("seed-" + seed + "-shard-" + sh[0] + "-of-" + sh[1] + ".jsonl");
     TreeMap<Long, ToyLog.Entry> done = readAll(c.folder(), seed, c.nullFingerprint());
     List<Long> todo = todo(done.keySet(), sh);
-    o.note("model %s: t_obs = %.4f, %d parameters; %d toys already done (all shards), %d to fit in shard %s",
-        c.mm().version(), c.tObs(), c.model().parameterCount(), done.size(), todo.size(), shard);
+    o.note("model %s: t_obs = %.4f, %d parameters; %d toy%s already done (all shards), %d to fit in shard %s",
+        c.mm().version(), c.tObs(), c.model().parameterCount(), done.size(), done.size() == 1 ? "" : "s",
+        todo.size(), shard);
     ToyLog.Header header = nullHeader(c);
     try (ToyProgress progress = ToyProgress.start(o, "toys " + c.mm().version(), todo.size())) {
       Calibration.run(r.features(), r.x(), r.w(), c.expected(), c.settings(), seed, longs(todo), e -> {
@@ -589,8 +590,8 @@ public final class CalibrateCommand implements Callable<Integer> {
     Path file = folder.resolve("seed-" + seed + "-shard-" + sh[0] + "-of-" + sh[1] + ".jsonl");
     TreeMap<Long, ToyLog.SignalToy> done = readSignal(folder, fp);
     List<Long> todo = todo(done.keySet(), sh);
-    o.note("model %s: injecting %s; %d signal toys already done (all shards), %d to fit in shard %s",
-        c.mm().version(), signal.describe(), done.size(), todo.size(), shard);
+    o.note("model %s: injecting %s; %d signal toy%s already done (all shards), %d to fit in shard %s",
+        c.mm().version(), signal.describe(), done.size(), done.size() == 1 ? "" : "s", todo.size(), shard);
     ToyLog.Header h = new ToyLog.Header(ToyLog.FORMAT, fp, c.mm().version(), seed, "signal " + signal.describe());
     try (ToyProgress progress = ToyProgress.start(o, "signal toys", todo.size())) {
       Calibration.runWithSignal(r.features(), r.x(), r.w(), c.expected(), c.settings(), seed, longs(todo), signal,

@@ -67,6 +67,10 @@ public final class RegionCommand implements Callable<Integer> {
       int ref = Roles.ordinal(m, Role.REFERENCE);
       SampleSums n = sums.get(obs);
       SampleSums b = sums.get(ref);
+      if (n.count() == 0 && b.count() == 0) {
+        throw new InputException(null, "the condition selects no observed and no reference event: there is no "
+            + "region to freeze (check it with triage select --where ...)");
+      }
       Map<String, double[]> variations = new LinkedHashMap<>();
       for (int k = 0; k < b.upSums().length; k++) {
         variations.put(m.spec().variations().get(k).name(), new double[] {b.upSums()[k], b.downSums()[k]});

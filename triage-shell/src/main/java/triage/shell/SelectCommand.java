@@ -34,6 +34,11 @@ public final class SelectCommand implements Callable<Integer> {
           + "separately.",
       "A p-value is not the probability that a signal is real.");
 
+  /** Said when the index's follow-up samples are shown beside the discovery figures. */
+  static final String FOLLOWUP_CAUTION = "The follow-up samples are shown for comparison only: a selection chosen or "
+      + "tuned while looking at them is no longer checked independently by them. Choose it on the discovery samples, "
+      + "freeze it (triage region), then check it (triage followup).";
+
   /** Filled by picocli. */
   @CommandLine.Spec
   CommandLine.Model.CommandSpec spec;
@@ -84,9 +89,13 @@ public final class SelectCommand implements Callable<Integer> {
       List<Map<String, Object>> comparisons = new ArrayList<>();
       compare(o, m, sums, variations, Role.OBSERVED, Role.REFERENCE, "discovery", comparisons);
       compare(o, m, sums, variations, Role.FOLLOWUP_OBSERVED, Role.FOLLOWUP_REFERENCE, "follow-up", comparisons);
+      List<String> cautions = new ArrayList<>(CAUTIONS);
+      if (comparisons.stream().anyMatch(c -> "follow-up".equals(c.get("label")))) {
+        cautions.add(FOLLOWUP_CAUTION);
+      }
       if (!comparisons.isEmpty()) {
         o.say("");
-        for (String c : CAUTIONS) {
+        for (String c : cautions) {
           o.say("note: %s", c);
         }
       }
@@ -98,7 +107,7 @@ public final class SelectCommand implements Callable<Integer> {
       result.put("where", where);
       result.put("samples", samples);
       result.put("comparisons", comparisons);
-      result.put("cautions", CAUTIONS);
+      result.put("cautions", cautions);
       o.result(result);
     }
     return ExitCodes.OK;

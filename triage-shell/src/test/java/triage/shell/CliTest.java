@@ -1000,6 +1000,27 @@ class CliTest {
    * and a divisor that is 0 for an event does not select it (m / 0 > 1 selected every event). Fixture: the small
    * samples (m 90…120.25, run 5 and 6), with a category column added.
    */
+  /** select shows the index's follow-up samples beside the discovery figures, and says what looking at them costs. */
+  @Test
+  void followUpFiguresInASelectionComeWithTheirCaution() throws IOException {
+    Files.writeString(dir.resolve("fr.csv"), "event,m,w\n1,100,0.5\n2,120,1.5\n");
+    Files.writeString(dir.resolve("fo.csv"), "event,m\n10,101\n");
+    Files.writeString(dir.resolve("gr.csv"), "event,m,w\n21,100,0.5\n22,120,1.5\n");
+    Files.writeString(dir.resolve("go.csv"), "event,m\n30,99\n");
+    Path idx = dir.resolve("with-followup");
+    Run ingest = run("ingest", "--index", idx.toString(), "--reference", dir.resolve("fr.csv").toString(),
+        "--observed", dir.resolve("fo.csv").toString(), "--followup-reference", dir.resolve("gr.csv").toString(),
+        "--followup-observed", dir.resolve("go.csv").toString(), "--features", "m", "--weight", "w");
+    assertEquals(0, ingest.code(), ingest.err());
+    Run sel = run("select", "--index", idx.toString(), "--where", "m < 110", "--json");
+    assertEquals(0, sel.code(), sel.err());
+    JsonNode j = JSON.readTree(sel.out());
+    assertEquals(2, j.get("comparisons").size(), sel.out());
+    assertTrue(j.get("cautions").toString().contains("shown for comparison only"), sel.out());
+    Run text = run("select", "--index", idx.toString(), "--where", "m < 110");
+    assertTrue(text.out().contains("note: The follow-up samples are shown for comparison only"), text.out());
+  }
+
   @Test
   void emptyAndImpossibleSelectionsAreSaidSo() throws IOException {
     Path index = ingestSamples();
@@ -1022,6 +1043,14 @@ class CliTest {
     JsonNode cmp = JSON.readTree(runtimeZero.out()).get("comparisons").get(0);
     assertEquals(1, cmp.get("observed").asLong());
     assertEquals(2.0, cmp.get("expected").asDouble(), 0);
+    // an empty region is not frozen
+    Path emptyRegion = dir.resolve("empty-region.json");
+    Run region = run("region", "--index", index.toString(), "--where", "m > 1e9", "--out", emptyRegion.toString());
+    assertEquals(ExitCodes.INPUT, region.code(), region.err());
+    assertTrue(region.err().contains("selects no observed and no reference event"), region.err());
+    assertFalse(Files.exists(emptyRegion));
+    // the follow-up samples shown beside a selection come with their caution (none in this index: no caution)
+    assertFalse(runtimeZero.out().contains("shown for comparison only"), runtimeZero.out());
   }
 
   @Test
