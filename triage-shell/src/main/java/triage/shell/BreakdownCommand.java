@@ -237,10 +237,18 @@ public final class BreakdownCommand implements Callable<Integer> {
             + "to zero or less (no positive expectation to compare with), holding %d observed event%s", h.leftOut(), h.leftOut() == 1 ? "" : "s",
             h.observedLeftOut(), h.observedLeftOut() == 1 ? "" : "s");
       }
+      // Sparse: the χ² approximation fails, so the ratio test's p comes from a parametric bootstrap that carries
+      // the reference's MC errors (Homogeneity.monteCarloP).
+      double ratioMonteCarloP = Double.NaN;
       if (h.sparse()) {
+        ratioMonteCarloP = triage.core.inference.Homogeneity.monteCarloP(
+            rows.stream().mapToLong(Row::observed).toArray(), rows.stream().mapToDouble(Row::expected).toArray(),
+            rows.stream().mapToDouble(Row::expectedVariance).toArray(), RATIO_TABLES, MONTE_CARLO_SEED);
         o.say("  sparse: median expected %.2g events per value (r·b), more than a fifth of them below 5 or some below "
-            + "1: the χ² approximation does not hold, so that p is a guide only (merge values%s)",
-            h.medianExpected(), column.kind() == ColumnKind.BLOCK ? ", e.g. --by run" : "");
+            + "1: the χ² approximation does not hold; p = %.3g from %d Monte Carlo tables (seed %d; Poisson counts, "
+            + "the reference's MC errors drawn too)%s", h.medianExpected(), ratioMonteCarloP, RATIO_TABLES,
+            MONTE_CARLO_SEED, column.kind() == ColumnKind.BLOCK ? "; merging values (e.g. --by run) gives more "
+            + "events per value" : "");
       }
       List<String> worst = new ArrayList<>();
       rows.stream().filter(r -> pullOf.get(r.value()) > 3).sorted((a, b) -> Double.compare(pullOf.get(b.value()),
@@ -257,7 +265,7 @@ public final class BreakdownCommand implements Callable<Integer> {
         o.say("sparse table (%d selected over %d values): share p = %.3g from %d Monte Carlo tables (seed %d)",
             totalN, used, shareP, MONTE_CARLO_TABLES, MONTE_CARLO_SEED);
       }
-      String verdict = verdict(shareP, p, !h.sparse(), h.observedLeftOut(), worst, by);
+      String verdict = verdict(shareP, h.sparse() ? ratioMonteCarloP : p, true, h.observedLeftOut(), worst, by);
       o.say("verdict    %s", verdict);
       Map<String, Object> result = new LinkedHashMap<>();
       if (column.kind() == ColumnKind.RUN && rows.size() > 1) {
@@ -307,6 +315,8 @@ public final class BreakdownCommand implements Callable<Integer> {
       result.put("homogeneityP", p);
       result.put("homogeneitySparse", h.sparse());
       result.put("homogeneityMedianExpected", h.medianExpected());
+      result.put("homogeneityMonteCarloP", ratioMonteCarloP);
+      result.put("homogeneityMonteCarloTables", h.sparse() ? RATIO_TABLES : 0);
       result.put("homogeneityLeftOut", h.leftOut());
       result.put("homogeneityObservedLeftOut", h.observedLeftOut());
       result.put("keyedBy", keyedBy);
@@ -320,6 +330,8 @@ public final class BreakdownCommand implements Callable<Integer> {
   /** Monte Carlo tables of the share test on sparse tables, and their seed. */
   static final int MONTE_CARLO_TABLES = 9999;
   static final long MONTE_CARLO_SEED = 1;
+  /** Monte Carlo tables of the ratio test on sparse tables (each draws a count and a yield per value). */
+  static final int RATIO_TABLES = 1999;
 
   /**
    * One line: whether the selection is concentrated in some values of the column. Concentrated when the share

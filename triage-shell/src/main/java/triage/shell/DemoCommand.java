@@ -473,7 +473,8 @@ public final class DemoCommand implements Callable<Integer> {
     w.set("concentratedIn", breakdown.path("concentratedIn"));
     w.put("shareP", breakdown.path("sparse").asBoolean() ? breakdown.path("shareMonteCarloP").asDouble()
         : breakdown.path("shareP").asDouble());
-    w.set("homogeneityP", breakdown.path("homogeneityP"));
+    w.put("homogeneityP", breakdown.path("homogeneitySparse").asBoolean()
+        ? breakdown.path("homogeneityMonteCarloP").asDouble() : breakdown.path("homogeneityP").asDouble());
     w.set("topThreeExcessFraction", breakdown.path("topThreeExcessFraction"));
     ArrayNode v = w.putArray("values");
     JsonNode values = breakdown.path("values");
