@@ -31,7 +31,7 @@ import triage.index.EventStore;
 final class Session {
   /** Commands that read the session's index. */
   static final Set<String> INDEX_COMMANDS = Set.of("info", "select", "rank", "fit", "calibrate", "region", "hist",
-      "events", "scan", "breakdown", "export", "derive", "map", "stress");
+      "events", "scan", "breakdown", "export", "derive", "map", "stress", "run");
 
   /** Words of the session itself, not commands of the command line. */
   static final List<String> SESSION_WORDS = List.of("name", "names", "help", "quit", "exit");

@@ -131,7 +131,11 @@ class ConsoleTest {
 
   @Test
   void consoleHelpListsTheSessionWordsAndANestedConsoleIsRefused() throws IOException {
-    String shown = console("help\nconsole\nquit\n");
+    Path script = dir.resolve("inner.triage");
+    Files.writeString(script, "info\n");
+    String shown = console("help\nconsole\nrun " + script + "\nquit\n");
+    // a script run from the console runs on the session's index
+    assertTrue(shown.contains("triage> info"), shown);
     assertTrue(shown.contains("name NAME = CONDITION"), shown);
     assertTrue(shown.contains("quit, exit, Ctrl-D"), shown);
     assertTrue(shown.contains("  select "), shown);
