@@ -141,6 +141,12 @@ public final class FollowupCommand implements Callable<Integer> {
         weight = discoveryWeight;
         weightNote = "reference weights from column '" + weight + "', the discovery reference's weight column "
             + "(recorded in the region file; --weight chooses another)";
+      } else if (weight == null && region.scales() == null && region.discovery().expected() == 0) {
+        // a region file written before the weight column was recorded, with nothing expected in the discovery: its
+        // yields cannot tell whether that reference was weighted
+        weightNote = "the region file does not say whether the discovery reference was weighted (it was written "
+            + "before the weight column was recorded, and nothing was expected in the discovery): the follow-up "
+            + "reference is read unweighted; give --weight COL if its events carry weights";
       }
       try {
         follow = new SampleSpec(SampleSpec.FORMAT, region.columns(), region.variations(), List.of(
@@ -190,6 +196,7 @@ public final class FollowupCommand implements Callable<Integer> {
     o.say("region '%s' (%s)", region.name(), region.where());
     if (weightNote != null) {
       o.say("note: %s", weightNote);
+      cautions.add("In the follow-up, " + weightNote + ".");
     }
     if (overlap > 0) {
       o.say("WARNING: %d observed ids overlap the discovery sample; --allow-overlap was given", overlap);
@@ -219,7 +226,9 @@ public final class FollowupCommand implements Callable<Integer> {
     }
     if (notIncluded == null) {
       String caution = "the region file does not record the discovery's scale systematics (it was written before "
-          + "they were recorded): any the discovery spec declared are not included in the systematic error";
+          + "they were recorded): " + (scales.isEmpty() ? "any the discovery spec declared are not included in the "
+          + "systematic error" : "the follow-up spec's (" + String.join(", ", scales.stream().map(ScaleShift::name)
+          .toList()) + ") are included; any other the discovery spec declared is not");
       o.say("caution: %s", caution);
       cautions.add("In the follow-up, " + caution + ".");
     } else if (!notIncluded.isEmpty()) {

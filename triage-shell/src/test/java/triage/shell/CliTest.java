@@ -677,6 +677,33 @@ class CliTest {
         fobs.toString());
     assertEquals(ExitCodes.INPUT, unknown.code(), unknown.err());
     assertTrue(unknown.err().contains("was frozen from a weighted reference"), unknown.err());
+    // A region file from before the weight column and the scales were recorded, with nothing expected in the
+    // discovery (observed event 10 alone): its yields cannot tell whether the reference was weighted, so the
+    // follow-up says how it read the reference; with a follow-up spec, its scales are said to be included.
+    Path zero = dir.resolve("zero.json");
+    assertEquals(0, run("region", "--index", index.toString(), "--where", "m > 100.9 AND m < 101.1", "--out",
+        zero.toString()).code());
+    var old = (com.fasterxml.jackson.databind.node.ObjectNode) JSON.readTree(Files.readString(zero));
+    old.remove("scales");
+    old.get("provenance").get("inputs").forEach(in -> ((com.fasterxml.jackson.databind.node.ObjectNode) in)
+        .remove("weight"));
+    Path oldRegion = dir.resolve("old-zero.json");
+    Files.writeString(oldRegion, JSON.writerWithDefaultPrettyPrinter().writeValueAsString(old));
+    Run undecided = run("followup", "--region", oldRegion.toString(), "--reference", fref.toString(),
+        "--observed", fobs.toString(), "--json");
+    assertEquals(0, undecided.code(), undecided.err());
+    assertTrue(JSON.readTree(undecided.out()).get("cautions").toString().contains("read unweighted; give --weight "
+        + "COL if its events carry weights"), undecided.out());
+    Files.writeString(dir.resolve("fspec.json"), """
+        {"format": "triage-samples/1", "columns": {"features": ["m", "pt"], "id": "event", "run": "run"},
+         "scales": [{"name": "m_scale", "features": ["m"], "relative": 0.1}],
+         "samples": [{"name": "fr", "role": "followup-reference", "file": "fref.csv", "weight": "w"},
+                     {"name": "fo", "role": "followup-observed", "file": "fobs.csv"}]}
+        """);
+    Run withSpec = run("followup", "--region", oldRegion.toString(), "--spec", dir.resolve("fspec.json").toString());
+    assertEquals(0, withSpec.code(), withSpec.err());
+    assertTrue(withSpec.out().contains("the follow-up spec's (m_scale) are included"), withSpec.out());
+    assertFalse(withSpec.out().contains("any the discovery spec declared are not included"), withSpec.out());
     // the discovery's own reference file: warned, and not called independent
     Run same = run("followup", "--region", region.toString(), "--reference", dir.resolve("ref.csv").toString(),
         "--observed", fobs.toString());
