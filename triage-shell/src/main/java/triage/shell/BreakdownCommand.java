@@ -234,7 +234,8 @@ public final class BreakdownCommand implements Callable<Integer> {
           excess != 0 ? 100 * top3 / excess : Double.NaN);
       if (h.leftOut() > 0) {
         o.say("  left out of that ratio test: %d value%s without reference weight or whose reference weights sum "
-            + "to zero or less (no positive expectation to compare with), holding %d observed event%s", h.leftOut(), h.leftOut() == 1 ? "" : "s",
+            + "to zero or less (no positive expectation to compare with), holding %d observed event%s", h.leftOut(),
+            h.leftOut() == 1 ? "" : "s",
             h.observedLeftOut(), h.observedLeftOut() == 1 ? "" : "s");
       }
       // Sparse: the χ² approximation fails, so the ratio test's p comes from a parametric bootstrap that carries
@@ -247,8 +248,12 @@ public final class BreakdownCommand implements Callable<Integer> {
         o.say("  sparse: median expected %.2g events per value (r·b), more than a fifth of them below 5 or some below "
             + "1: the χ² approximation does not hold; p = %.3g from %d Monte Carlo tables (seed %d; Poisson counts, "
             + "the reference's MC errors drawn too)%s", h.medianExpected(), ratioMonteCarloP, RATIO_TABLES,
-            MONTE_CARLO_SEED, column.kind() == ColumnKind.BLOCK ? "; merging values (e.g. --by run) gives more "
-            + "events per value" : "");
+            MONTE_CARLO_SEED, column.kind() == ColumnKind.BLOCK && runColumn(m) != null ? "; merging values (e.g. "
+            + "--by " + runColumn(m) + ") gives more events per value" : "");
+      }
+      if (column.kind() == ColumnKind.BLOCK && runColumn(m) == null) {
+        o.say("  note: the index has no run column, so blocks of the same number in different runs are counted as "
+            + "one value");
       }
       List<String> worst = new ArrayList<>();
       rows.stream().filter(r -> pullOf.get(r.value()) > 3).sorted((a, b) -> Double.compare(pullOf.get(b.value()),
@@ -265,7 +270,8 @@ public final class BreakdownCommand implements Callable<Integer> {
         o.say("sparse table (%d selected over %d values): share p = %.3g from %d Monte Carlo tables (seed %d)",
             totalN, used, shareP, MONTE_CARLO_TABLES, MONTE_CARLO_SEED);
       }
-      String verdict = verdict(shareP, h.sparse() ? ratioMonteCarloP : p, true, h.observedLeftOut(), worst, by);
+      String verdict = verdict(shareP, h.sparse() ? ratioMonteCarloP : p, !h.sparse(), h.observedLeftOut(), worst,
+          by);
       o.say("verdict    %s", verdict);
       Map<String, Object> result = new LinkedHashMap<>();
       if (column.kind() == ColumnKind.RUN && rows.size() > 1) {
@@ -335,24 +341,25 @@ public final class BreakdownCommand implements Callable<Integer> {
 
   /**
    * One line: whether the selection is concentrated in some values of the column. Concentrated when the share
-   * test or a reliable observed/expected test has p &lt; 0.001 (common practice, no source, for a flag meant to
-   * send the analyst to look); the values with a share pull above 3 are named. "Spread evenly" only when nothing
-   * speaks against it: an observed/expected test that fails on a sparse table (p &lt; 0.05, its χ² approximation
-   * unreliable), or observed events in values left out of that test, are said instead.
+   * test or the observed/expected test has p &lt; 0.001 (common practice, no source, for a flag meant to send the
+   * analyst to look); the values with a share pull above 3 are named; somewhat uneven below 0.05. "Spread evenly"
+   * otherwise; in a dense table observed events in values left out of the observed/expected test (no positive
+   * expectation) are said instead, while in a sparse table, where many values hold no reference event by chance,
+   * they are only counted (the share test, which needs no reference, covers where the observed events fall).
    *
    * @param shareP the share test's p-value (Monte Carlo on sparse tables)
-   * @param ratioP the observed/expected test's p-value (NaN when not computed)
-   * @param ratioReliable false when that test's table is too sparse for its χ² approximation
+   * @param ratioP the observed/expected test's p-value (NaN when not computed; Monte Carlo on sparse tables)
+   * @param dense whether that test's table is dense enough for its χ² approximation
    * @param observedLeftOut observed events in values left out of that test (no positive expectation)
    */
-  static String verdict(double shareP, double ratioP, boolean ratioReliable, long observedLeftOut,
+  static String verdict(double shareP, double ratioP, boolean dense, long observedLeftOut,
       List<String> worst, String by) {
     if (Double.isNaN(shareP)) {
       return "no test (fewer than two values with events, or nothing or everything selected)";
     }
     String ratio = Double.isNaN(ratioP) ? "" : ", observed/expected p " + pText(ratioP)
-        + (ratioReliable ? "" : " from a sparse table, a guide only");
-    if (shareP < 1e-3 || (ratioReliable && ratioP < 1e-3)) {
+        + (dense ? "" : " from Monte Carlo tables");
+    if (shareP < 1e-3 || ratioP < 1e-3) {
       return "concentrated" + (worst.isEmpty() ? "" : " in " + by + " " + String.join(", ", worst))
           + ": look for a detector or data-taking cause (share p " + pText(shareP) + ratio + ")";
     }
@@ -360,13 +367,18 @@ public final class BreakdownCommand implements Callable<Integer> {
       return "somewhat uneven (share p " + pText(shareP) + ratio + ")"
           + (worst.isEmpty() ? "" : ", most in " + by + " " + String.join(", ", worst)) + ": look closer";
     }
-    if (observedLeftOut > 0) {
+    if (observedLeftOut > 0 && dense) {
       return "share spread evenly (share p " + pText(shareP) + ratio + "), but " + observedLeftOut + " observed "
           + "event" + (observedLeftOut == 1 ? " lies" : "s lie") + " in values with no positive expectation, "
           + "outside the observed/expected test: look at them";
     }
-    return "spread evenly (share p " + pText(shareP) + ratio + "), as a real effect would be";
+    // in a sparse table many values hold no reference event by chance; the share test, which needs no reference,
+    // covers where the observed events fall
+    return "spread evenly (share p " + pText(shareP) + ratio + "), as a real effect would be" + (observedLeftOut > 0
+        ? "; " + observedLeftOut + " observed event" + (observedLeftOut == 1 ? " lies" : "s lie") + " in values with "
+        + "no positive expectation, as is usual when the reference has few events per value" : "");
   }
+
 
   /** A value of the column: a number, or (run, block) for blocks, which are numbered within their run. */
   private record Key(long run, long value, boolean withRun) implements Comparable<Key> {

@@ -254,7 +254,8 @@ public final class RankCommand implements Callable<Integer> {
         "p raw", "p adj");
     for (FeatureRanking.Row r : rows) {
       o.say("  %-14s %8.4f %10.4f %8.4f %10s %9s %8s %8s", r.feature(), r.ks(), r.aucSeparation(),
-          r.wasserstein(), Double.isNaN(r.jensenShannon()) ? "-" : String.format("%.5f", r.jensenShannon()),
+          r.wasserstein(),
+          Double.isNaN(r.jensenShannon()) ? "-" : String.format(java.util.Locale.ROOT, "%.5f", r.jensenShannon()),
           Output.p(r.ksAsymptoticP()), p(r.rawP()), p(r.adjustedP()));
       if (Double.isNaN(r.jensenShannon())) {
         o.say("    (%s: JS '-': a quantile bin's reference weights sum below zero, where a divergence is undefined)",

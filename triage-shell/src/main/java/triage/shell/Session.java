@@ -9,8 +9,6 @@ import java.util.Map;
 import java.util.Set;
 import java.util.regex.Matcher;
 import java.util.regex.Pattern;
-import org.jline.reader.Parser;
-import org.jline.reader.impl.DefaultParser;
 import picocli.CommandLine;
 import triage.core.sample.InputException;
 import triage.core.select.Where;
@@ -22,8 +20,9 @@ import triage.index.EventStore;
  * commands that take it. {@code name NAME = CONDITION} names a selection; {@code $NAME} in a later condition
  * stands for it (in parentheses, so names combine: {@code $high AND NOT $noisy}); {@code names} lists them.
  *
- * <p>Words ({@link #split}): separated by blanks; double or single quotes group a word and are removed, the other
- * kind inside them kept (as in {@code --where "sector = 'a'"}); a backslash is an ordinary character; an empty
+ * <p>Words ({@link #split}): separated by blanks; double or single quotes group, anywhere in a word, and are
+ * removed, the other kind inside them kept (as in {@code --where "sector = 'a'"} or {@code --where="m > 1"}); a
+ * backslash is an ordinary character; an empty
  * quoted word is a word; a quote left open is an error. {@code $NAME} is replaced only in conditions (the value of
  * {@code --where} and a {@code name} definition) and not inside a condition's quoted strings, so paths and labels
  * keep their dollar signs. A name stores its condition as expanded when it is defined.
@@ -65,17 +64,41 @@ final class Session {
 
   /** The words of one line (see the class comment); a quote left open is an {@link InputException}. */
   static List<String> split(String line) {
-    DefaultParser parser = new DefaultParser().escapeChars(new char[0]).eofOnUnclosedQuote(true);
-    String text = line.strip();
-    if (text.isEmpty()) {
-      return List.of();
+    List<String> words = new ArrayList<>();
+    StringBuilder word = new StringBuilder();
+    boolean inWord = false;
+    char open = 0;
+    for (int i = 0; i < line.length(); i++) {
+      char c = line.charAt(i);
+      if (open != 0) {
+        if (c == open) {
+          open = 0;
+        } else {
+          word.append(c);
+        }
+      } else if (c == '"' || c == '\'') {
+        // a quote anywhere in a word, as in --where="m > 1", groups and is removed
+        open = c;
+        inWord = true;
+      } else if (Character.isWhitespace(c)) {
+        if (inWord) {
+          words.add(word.toString());
+          word.setLength(0);
+          inWord = false;
+        }
+      } else {
+        word.append(c);
+        inWord = true;
+      }
     }
-    try {
-      return List.copyOf(parser.parse(text, text.length(), Parser.ParseContext.ACCEPT_LINE).words());
-    } catch (org.jline.reader.EOFError e) {
+    if (open != 0) {
       throw new InputException(null, "a quote is left open: close it, or quote it with the other kind (\" "
           + "inside '...', or ' inside \"...\")");
     }
+    if (inWord) {
+      words.add(word.toString());
+    }
+    return List.copyOf(words);
   }
 
   /**
@@ -162,7 +185,14 @@ final class Session {
         args.add(1, "--index");
         args.add(2, index.toString());
       }
-      String derivedName = first.equals("derive") ? derivedName(args) : null;
+      String derivedName;
+      try {
+        derivedName = first.equals("derive") ? derivedName(args) : null;
+      } catch (IllegalArgumentException e) {
+        // a usage error, as for name
+        err.println("triage: " + e.getMessage());
+        return ExitCodes.USAGE;
+      }
       DeriveCommand.lastCondition = null;
       int code = Main.run(args.toArray(String[]::new), out, err);
       if (code == 0 && derivedName != null && DeriveCommand.lastCondition != null) {
@@ -221,7 +251,7 @@ final class Session {
       }
     }
     if (name != null && !NAME.matcher(name).matches()) {
-      throw new InputException(null, "'" + name + "' cannot be a name: use letters, digits and underscores, "
+      throw new IllegalArgumentException("'" + name + "' cannot be a name: use letters, digits and underscores, "
           + "starting with a letter or underscore (so that $" + name + " reads as one name)");
     }
     return name;

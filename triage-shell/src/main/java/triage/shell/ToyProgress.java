@@ -45,7 +45,8 @@ final class ToyProgress implements AutoCloseable {
     ProgressBar bar = null;
     if (interactive(out) && total > 0) {
       bar = new ProgressBarBuilder().setTaskName(task).setInitialMax(total).setStyle(ProgressBarStyle.ASCII)
-          .setConsumer(new ConsoleProgressBarConsumer(System.err)).setUnit(" toys", 1).showSpeed(new java.text.DecimalFormat("0.0"))
+          .setConsumer(new ConsoleProgressBarConsumer(System.err)).setUnit(" toys", 1)
+          .showSpeed(new java.text.DecimalFormat("0.0"))
           .setSpeedUnit(ChronoUnit.MINUTES).setUpdateIntervalMillis(500).build();
     }
     return new ToyProgress(bar, out, total);

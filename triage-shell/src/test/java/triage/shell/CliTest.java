@@ -1005,7 +1005,9 @@ class CliTest {
     assertEquals(2, j.get("homogeneityObservedLeftOut").asLong());
     assertTrue(j.get("homogeneitySparse").asBoolean());
     assertEquals(3, j.get("homogeneityMedianExpected").asDouble(), 1e-12);
-    assertFalse(j.get("verdict").asText().startsWith("spread evenly"), j.get("verdict").asText());
+    // sparse: the ratio test's p from Monte Carlo tables, and the left-out events counted in the verdict
+    assertTrue(Double.isFinite(j.get("homogeneityMonteCarloP").asDouble()), r.out());
+    assertEquals(1999, j.get("homogeneityMonteCarloTables").asInt());
     assertTrue(j.get("verdict").asText().contains("2 observed events lie in values with no positive expectation"),
         j.get("verdict").asText());
     Run human = run("breakdown", "--index", index.toString(), "--where", "x > 0", "--by", "block");
@@ -1013,11 +1015,26 @@ class CliTest {
         + "reference weights sum to zero or less (no positive expectation to compare with), holding 2 observed "
         + "events"), human.out());
     assertTrue(human.out().contains("sparse: median expected 3.0 events per value"), human.out());
-    // A failed ratio test on a sparse table is not ignored (it was: "spread evenly"), nor trusted as a reliable one.
+    // without a run column blocks cannot be told apart across runs: said, and no --by run suggested
+    Path noRun = dir.resolve("no-run");
+    assertEquals(0, run("ingest", "--index", noRun.toString(), "--reference", dir.resolve("ref.csv").toString(),
+        "--observed", dir.resolve("obs.csv").toString(), "--features", "x", "--weight", "w", "--id", "event",
+        "--block", "block", "--allow-negative-weights").code());
+    Run pooled = run("breakdown", "--index", noRun.toString(), "--where", "x > 0", "--by", "block");
+    assertEquals(0, pooled.code(), pooled.err());
+    assertTrue(pooled.out().contains("the index has no run column, so blocks of the same number in different runs "
+        + "are counted as one value"), pooled.out());
+    assertFalse(pooled.out().contains("--by run"), pooled.out());
+    // A failed ratio test counts whether its p comes from the χ² approximation (dense) or from Monte Carlo tables
+    // (sparse); observed events left out of it call for a look in a dense table only.
     assertTrue(BreakdownCommand.verdict(0.5, 1e-5, false, 0, java.util.List.of(), "block")
-        .startsWith("somewhat uneven (share p = 0.50, observed/expected p = 1.0e-05 from a sparse table"));
+        .startsWith("concentrated: look for a detector or data-taking cause (share p = 0.50, observed/expected p = "
+            + "1.0e-05 from Monte Carlo tables"));
     assertTrue(BreakdownCommand.verdict(0.5, 1e-5, true, 0, java.util.List.of(), "block").startsWith("concentrated"));
     assertTrue(BreakdownCommand.verdict(0.5, 0.5, true, 0, java.util.List.of(), "block").startsWith("spread evenly"));
+    assertTrue(BreakdownCommand.verdict(0.5, 0.5, true, 4, java.util.List.of(), "block").endsWith("look at them"));
+    assertTrue(BreakdownCommand.verdict(0.5, 0.5, false, 4, java.util.List.of(), "block")
+        .startsWith("spread evenly"));
   }
 
   /**

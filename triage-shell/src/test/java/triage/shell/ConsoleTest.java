@@ -96,6 +96,9 @@ class ConsoleTest {
     assertEquals(java.util.List.of("export", "--out", "back\\slash.csv"),
         Session.split("export --out back\\slash.csv"));
     assertEquals(java.util.List.of("select", "--where", ""), Session.split("select --where \"\""));
+    // quotes inside a word group and are removed, as in a shell
+    assertEquals(java.util.List.of("select", "--where=m > 1 AND x = 'a'"),
+        Session.split("select --where=\"m > 1 AND x = 'a'\""));
     assertEquals(java.util.List.of(), Session.split("   "));
     var open = org.junit.jupiter.api.Assertions.assertThrows(triage.core.sample.InputException.class,
         () -> Session.split("select --where \"m > 700"));

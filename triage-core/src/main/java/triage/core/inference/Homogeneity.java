@@ -67,10 +67,11 @@ public record Homogeneity(double statistic, int dof, double pValue, boolean spar
         fitted[k++] = r * expected[i];
         small += r * expected[i] < 5 ? 1 : 0;
         tiny |= r * expected[i] < 1;
-      } else {
+      } else if (!(expected[i] > 0)) {
         left++;
         leftN += observed[i];
       }
+      // else b_i > 0 with no variance: only when r = 0, where every tested group has n_i = 0 (nothing left out)
     }
     if (k < 2) {
       return new Homogeneity(Double.NaN, 0, Double.NaN, false, k == 1 ? fitted[0] : Double.NaN, left, leftN);

@@ -161,6 +161,17 @@ class HomogeneityTest {
     assertTrue(fraction(p[1], 0.05) >= 3 * fraction(p[0], 0.05), "chi2 " + fraction(p[1], 0.05));
   }
 
+  /** No observed event where there is reference weight: no test, and only the values without weight left out. */
+  @Test
+  void withoutObservedEventsOnlyValuesWithoutWeightAreLeftOut() {
+    // n = (0, 0, 4), b = (1.5, 2, 0): r = 0 over the groups with b > 0, so no statistic; the third group (b = 0,
+    // 4 events) is the only one left out (it said 3 groups before)
+    Homogeneity h = Homogeneity.of(new long[] {0, 0, 4}, new double[] {1.5, 2, 0}, new double[] {0.2, 0.3, 0});
+    assertTrue(Double.isNaN(h.statistic()));
+    assertEquals(1, h.leftOut());
+    assertEquals(4, h.observedLeftOut());
+  }
+
   /**
    * Where the χ² approximation holds (r·b_i about 200 in each of 8 groups, small MC errors) the bootstrap agrees
    * with it: the χ²(7) tail of the same statistic, within 4 Monte Carlo standard errors of 4,999 tables (analytic
