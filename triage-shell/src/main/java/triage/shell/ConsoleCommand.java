@@ -65,6 +65,8 @@ public final class ConsoleCommand implements Callable<Integer> {
 
   private static int loop(Terminal terminal, Path index, Manifest manifest) {
     Session session = new Session(index);
+    Path namesFile = index.resolve(NAMES_FILE);
+    String restored = restoreNames(session, namesFile);
     java.util.function.IntSupplier previousWidth = Output.terminalWidth;
     Output.terminalWidth = () -> terminal.getType().startsWith("dumb") ? 0 : terminal.getWidth();
     // The same word rule as scripts (Session.split): no backslash escapes; an open quote continues on the next line.
@@ -93,6 +95,9 @@ public final class ConsoleCommand implements Callable<Integer> {
     });
     out.println("triage console on " + index + " (" + manifest.totalEvents() + " events; 'help' lists commands, "
         + "Ctrl-D leaves)");
+    if (restored != null) {
+      out.println(restored);
+    }
     out.flush();
     while (true) {
       String line;
@@ -112,8 +117,12 @@ public final class ConsoleCommand implements Callable<Integer> {
         continue;
       }
       running[0] = words.isEmpty() ? null : words.get(0);
+      java.util.Map<String, String> before = new java.util.LinkedHashMap<>(session.names());
       int code = session.execute(line, words, out, out);
       running[0] = null;
+      if (!before.equals(session.names())) {
+        saveNames(session, namesFile, out);
+      }
       if (code < 0) {
         break;
       }
@@ -126,6 +135,60 @@ public final class ConsoleCommand implements Callable<Integer> {
       out.println("triage: could not save the history: " + e.getMessage());
     }
     return ExitCodes.OK;
+  }
+
+  /** The console's named selections, kept in the index folder beside its history (one "NAME = CONDITION" a line). */
+  static final String NAMES_FILE = "console-names";
+
+  /**
+   * Reads the names of earlier sessions; each condition is checked against the index as it is now, and one that no
+   * longer holds (a column or model gone) is dropped with a word. Returns the line to show, or null without names.
+   */
+  static String restoreNames(Session session, Path file) {
+    if (!java.nio.file.Files.isRegularFile(file)) {
+      return null;
+    }
+    List<String> kept = new ArrayList<>();
+    List<String> dropped = new ArrayList<>();
+    try (EventStore store = EventStore.open(session.index())) {
+      for (String line : java.nio.file.Files.readAllLines(file)) {
+        int eq = line.indexOf(" = ");
+        if (eq <= 0) {
+          continue;
+        }
+        String name = line.substring(0, eq);
+        String condition = line.substring(eq + 3);
+        try {
+          triage.core.select.Where.parse(condition, store.kinds());
+          session.names().put(name, condition);
+          kept.add(name);
+        } catch (triage.core.sample.InputException e) {
+          dropped.add(name);
+        }
+      }
+    } catch (java.io.IOException | RuntimeException e) {
+      return "could not read the named selections of earlier sessions (" + file + "): " + e.getMessage();
+    }
+    if (kept.isEmpty() && dropped.isEmpty()) {
+      return null;
+    }
+    return "named selections from earlier sessions: " + (kept.isEmpty() ? "none usable" : String.join(", ", kept))
+        + (dropped.isEmpty() ? "" : "; dropped, as they no longer fit the index: " + String.join(", ", dropped))
+        + " ('names' lists them)";
+  }
+
+  /** Writes the session's names (through a temporary file, so a crash leaves the previous list). */
+  static void saveNames(Session session, Path file, PrintWriter out) {
+    StringBuilder b = new StringBuilder();
+    session.names().forEach((k, v) -> b.append(k).append(" = ").append(v).append('\n'));
+    try {
+      Path tmp = file.resolveSibling(file.getFileName() + ".tmp");
+      java.nio.file.Files.writeString(tmp, b);
+      java.nio.file.Files.move(tmp, file, java.nio.file.StandardCopyOption.REPLACE_EXISTING,
+          java.nio.file.StandardCopyOption.ATOMIC_MOVE);
+    } catch (java.io.IOException e) {
+      out.println("triage: could not keep the named selections for later sessions: " + e.getMessage());
+    }
   }
 
   /**

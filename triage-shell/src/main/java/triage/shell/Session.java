@@ -280,7 +280,8 @@ final class Session {
     out.println("Session words:");
     out.println("  name NAME = CONDITION   name a selection (checked against the index's columns now)");
     out.println("  $NAME                   in a --where condition: the named selection, in parentheses");
-    out.println("  names                   list the named selections (they last for this session or script)");
+    out.println("  names                   list the named selections (the console keeps them for later sessions; a "
+        + "script's last for the script)");
     out.println("  help COMMAND            a command's options (also: COMMAND --help)");
     out.println("  quit, exit, Ctrl-D      leave; Ctrl-C stops a running command after its current step");
   }

@@ -53,6 +53,20 @@ class ConsoleTest {
     assertTrue(Files.readString(index.resolve("console-history")).contains("name low = m < 110"));
   }
 
+  /** Names outlive the console session (as its history does), checked against the index when they come back. */
+  @Test
+  void namesAreKeptForLaterSessions() throws IOException {
+    console("name low = m < 110\nname mid = pt > 21\nquit\n");
+    assertTrue(Files.readString(index.resolve(ConsoleCommand.NAMES_FILE)).contains("low = m < 110"));
+    // a name whose column no longer exists is dropped with a word
+    Files.writeString(index.resolve(ConsoleCommand.NAMES_FILE), "low = m < 110\nmid = pt > 21\ngone = mass > 1\n");
+    String shown = console("select --where \"$low AND $mid\"\nquit\n");
+    assertTrue(shown.contains("named selections from earlier sessions: low, mid; dropped, as they no longer fit "
+        + "the index: gone"), shown);
+    // by hand: m < 110 and pt > 21 hold for observed event 11 and reference event 3 (w 2)
+    assertTrue(shown.contains("discovery  observed 1, expected 2.000"), shown);
+  }
+
   @Test
   void completionsOfferCommandsOptionsAndColumns() throws IOException {
     try (var store = triage.index.EventStore.open(index)) {
