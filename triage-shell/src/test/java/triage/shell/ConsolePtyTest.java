@@ -101,15 +101,7 @@ class ConsolePtyTest {
   void completionHistoryAndCtrlCInARealTerminal() throws Exception {
     Assumptions.assumeTrue(Files.isExecutable(Path.of("/usr/bin/script")),
         "SKIPPED: script(1) from util-linux is needed to give the console a pseudo-terminal");
-    // Equal reference weights, so that 'rank' below runs label permutations (it gives no resampling p-value for
-    // unequal weights and a reference of fewer than twice the observed events, and would end at once).
-    Files.writeString(dir.resolve("ref.csv"), "event,run,m,pt,w\n1,5,100.5,20,1.25\n2,5,120.25,30,1.25\n"
-        + "3,6,90,25,1.25\n4,6,95,28,1.25\n");
-    Files.writeString(dir.resolve("obs.csv"), "event,run,m,pt\n10,5,101,21\n11,6,99,22\n12,6,93,27\n");
-    Path index = dir.resolve("index");
-    assertEquals(0, CliTest.run("ingest", "--index", index.toString(), "--reference",
-        dir.resolve("ref.csv").toString(), "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt",
-        "--weight", "w", "--run", "run").code());
+    Path index = equalWeightIndex(dir);
 
     try (Child c = new Child(index)) {
       int at = c.await("triage> ", 0);
@@ -146,5 +138,21 @@ class ConsolePtyTest {
       c.await("triage> ", at);
       c.type("\u0004");
     }
+  }
+
+  /**
+   * A small index with equal reference weights, so that 'rank' runs label permutations (it gives no resampling
+   * p-value for unequal weights and a reference of fewer than twice the observed events, and would end at once): a
+   * long command that Ctrl-C can stop. Also used by {@code RunSignalTest}.
+   */
+  static Path equalWeightIndex(Path dir) throws IOException {
+    Files.writeString(dir.resolve("ref.csv"), "event,run,m,pt,w\n1,5,100.5,20,1.25\n2,5,120.25,30,1.25\n"
+        + "3,6,90,25,1.25\n4,6,95,28,1.25\n");
+    Files.writeString(dir.resolve("obs.csv"), "event,run,m,pt\n10,5,101,21\n11,6,99,22\n12,6,93,27\n");
+    Path index = dir.resolve("index");
+    assertEquals(0, CliTest.run("ingest", "--index", index.toString(), "--reference",
+        dir.resolve("ref.csv").toString(), "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt",
+        "--weight", "w", "--run", "run").code());
+    return index;
   }
 }

@@ -26,14 +26,7 @@ class RunSignalTest {
 
   @Test
   void ctrlCEndsTheScriptWithItsObjectAndOutputIsUtf8() throws Exception {
-    // Equal reference weights, so that 'rank' runs label permutations (as in ConsolePtyTest).
-    Files.writeString(dir.resolve("ref.csv"), "event,run,m,pt,w\n1,5,100.5,20,1.25\n2,5,120.25,30,1.25\n"
-        + "3,6,90,25,1.25\n4,6,95,28,1.25\n");
-    Files.writeString(dir.resolve("obs.csv"), "event,run,m,pt\n10,5,101,21\n11,6,99,22\n12,6,93,27\n");
-    Path index = dir.resolve("index");
-    assertEquals(0, CliTest.run("ingest", "--index", index.toString(), "--reference",
-        dir.resolve("ref.csv").toString(), "--observed", dir.resolve("obs.csv").toString(), "--features", "m,pt",
-        "--weight", "w", "--run", "run").code());
+    Path index = ConsolePtyTest.equalWeightIndex(dir);
     Path script = dir.resolve("long.triage");
     Files.writeString(script, "info\nrank --where \"m > 0\" --permutations 2000000000\ninfo\n");
     String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();

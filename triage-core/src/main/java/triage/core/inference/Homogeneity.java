@@ -28,22 +28,16 @@ package triage.core.inference;
  * @param pValue the upper tail of χ²(k − 1)
  * @param sparse whether the groups expect too few events for the χ² approximation (see above)
  * @param medianExpected the median of r b_i over the tested groups (NaN without any)
- * @param leftOut groups left out because b_i ≤ 0 (or their variance is not positive)
+ * @param leftOut groups left out because b_i ≤ 0 or their effective count b_i²/σ_i² is below 1
  * @param observedLeftOut the observed events in those groups
  */
 public record Homogeneity(double statistic, int dof, double pValue, boolean sparse, double medianExpected,
     int leftOut, long observedLeftOut) {
   /** Computes the statistic. */
   public static Homogeneity of(long[] observed, double[] expected, double[] expectedVariance) {
-    double n = 0;
-    double b = 0;
-    for (int i = 0; i < observed.length; i++) {
-      // r is fitted on the groups that enter the sum (a group left out is left out of both)
-      if (usable(expected[i], expectedVariance[i])) {
-        n += observed[i];
-        b += expected[i];
-      }
-    }
+    double[] nb = usableSums(observed, expected, expectedVariance);
+    double n = nb[0];
+    double b = nb[1];
     if (!(b > 0)) {
       int left = 0;
       long leftN = 0;
@@ -122,15 +116,8 @@ public record Homogeneity(double statistic, int dof, double pValue, boolean spar
     if (Double.isNaN(h.statistic())) {
       return Double.NaN;
     }
-    double n = 0;
-    double b = 0;
-    for (int i = 0; i < observed.length; i++) {
-      if (usable(expected[i], expectedVariance[i])) {
-        n += observed[i];
-        b += expected[i];
-      }
-    }
-    double r = n / b;
+    double[] nb = usableSums(observed, expected, expectedVariance);
+    double r = nb[0] / nb[1];
     // the groups of the observed statistic
     int k = 0;
     int[] tested = new int[observed.length];
@@ -196,6 +183,19 @@ public record Homogeneity(double statistic, int dof, double pValue, boolean spar
       }
     }
     return (extreme + 1.0) / (usableTables + 1.0);
+  }
+
+  /** Σn and Σb over the usable groups, on which r is fitted (a group left out is left out of both). */
+  private static double[] usableSums(long[] observed, double[] expected, double[] expectedVariance) {
+    double n = 0;
+    double b = 0;
+    for (int i = 0; i < observed.length; i++) {
+      if (usable(expected[i], expectedVariance[i])) {
+        n += observed[i];
+        b += expected[i];
+      }
+    }
+    return new double[] {n, b};
   }
 
   /** Means beyond which the bootstrap draws a rounded normal instead of a Poisson count. */
