@@ -1027,18 +1027,27 @@ class CliTest {
     assertFalse(pooled.out().contains("--by run"), pooled.out());
     // A failed ratio test counts whether its p comes from the χ² approximation (dense) or from Monte Carlo tables
     // (sparse); observed events left out of it call for a look in a dense table only.
-    assertTrue(BreakdownCommand.verdict(0.5, 1e-5, true, false, 0, java.util.List.of(), "block")
+    assertTrue(BreakdownCommand.verdict(0.5, 1e-5, true, false, 0, java.util.List.of(), "block", 2)
         .startsWith("concentrated: look for a detector or data-taking cause (share p = 0.50, observed/expected p = "
             + "1.0e-05 from Monte Carlo tables"));
-    assertTrue(BreakdownCommand.verdict(0.5, 1e-5, false, false, 0, java.util.List.of(), "block")
+    assertTrue(BreakdownCommand.verdict(0.5, 1e-5, false, false, 0, java.util.List.of(), "block", 2)
         .startsWith("concentrated"));
-    assertTrue(BreakdownCommand.verdict(0.5, 0.5, false, false, 0, java.util.List.of(), "block")
+    assertTrue(BreakdownCommand.verdict(0.5, 0.5, false, false, 0, java.util.List.of(), "block", 2)
         .startsWith("spread evenly"));
     // observed events where the reference has none: a look, unless the reference is thin everywhere
-    assertTrue(BreakdownCommand.verdict(0.5, 0.5, true, false, 4, java.util.List.of(), "block")
+    assertTrue(BreakdownCommand.verdict(0.5, 0.5, true, false, 4, java.util.List.of(), "block", 2)
         .endsWith("look at them"));
-    assertTrue(BreakdownCommand.verdict(0.5, 0.5, true, true, 4, java.util.List.of(), "block")
+    assertTrue(BreakdownCommand.verdict(0.5, 0.5, true, true, 4, java.util.List.of(), "block", 2)
         .startsWith("spread evenly"));
+    // Bonferroni over the breakdown's tests: p = 0.02 is uneven for one column (2 tests: 0.04), not for three (6)
+    assertTrue(BreakdownCommand.verdict(0.02, 0.5, false, false, 0, java.util.List.of(), "run", 2)
+        .startsWith("somewhat uneven"));
+    assertTrue(BreakdownCommand.verdict(0.02, 0.5, false, false, 0, java.util.List.of(), "run", 6)
+        .startsWith("spread evenly"));
+    assertTrue(BreakdownCommand.verdict(6e-4, 0.5, false, false, 0, java.util.List.of(), "run", 2)
+        .startsWith("somewhat uneven"));
+    assertTrue(BreakdownCommand.verdict(6e-4, 0.5, false, false, 0, java.util.List.of(), "run", 1)
+        .startsWith("concentrated"));
   }
 
   /**
