@@ -175,14 +175,15 @@ public final class BreakdownCommand implements Callable<Integer> {
         acc.forEach((k, a) -> rows.add(new Row(k.toString(), (long) a[0], a[1], a[2], (long) a[3])));
         keyedBy = runColumn != null ? runColumn + ":" + by : by;
       }
+      long[] nObs = rows.stream().mapToLong(Row::observed).toArray();
+      long[] nAll = rows.stream().mapToLong(Row::observedAll).toArray();
+      double[] bExp = rows.stream().mapToDouble(Row::expected).toArray();
+      double[] bVar = rows.stream().mapToDouble(Row::expectedVariance).toArray();
       long totalN = rows.stream().mapToLong(Row::observed).sum();
       double totalB = rows.stream().mapToDouble(Row::expected).sum();
       long totalAll = rows.stream().mapToLong(Row::observedAll).sum();
-      triage.core.inference.Homogeneity h = triage.core.inference.Homogeneity.of(
-          rows.stream().mapToLong(Row::observed).toArray(), rows.stream().mapToDouble(Row::expected).toArray(),
-          rows.stream().mapToDouble(Row::expectedVariance).toArray());
-      SelectionShare share = SelectionShare.of(rows.stream().mapToLong(Row::observed).toArray(),
-          rows.stream().mapToLong(Row::observedAll).toArray());
+      triage.core.inference.Homogeneity h = triage.core.inference.Homogeneity.of(nObs, bExp, bVar);
+      SelectionShare share = SelectionShare.of(nObs, nAll);
       java.util.Map<String, Double> pullOf = new java.util.HashMap<>();
       for (int i = 0; i < rows.size(); i++) {
         pullOf.put(rows.get(i).value(), share.pulls()[i]);
@@ -254,9 +255,8 @@ public final class BreakdownCommand implements Callable<Integer> {
             h.medianExpected(), testedValues, column.kind() == ColumnKind.BLOCK && runColumn(m) != null
                 ? " (e.g. --by " + runColumn(m) + ")" : "");
       } else if (h.sparse()) {
-        ratioMonteCarloP = triage.core.inference.Homogeneity.monteCarloP(
-            rows.stream().mapToLong(Row::observed).toArray(), rows.stream().mapToDouble(Row::expected).toArray(),
-            rows.stream().mapToDouble(Row::expectedVariance).toArray(), RATIO_TABLES, MONTE_CARLO_SEED);
+        ratioMonteCarloP = triage.core.inference.Homogeneity.monteCarloP(nObs, bExp, bVar, RATIO_TABLES,
+            MONTE_CARLO_SEED);
         o.say("  sparse: median expected %.2g events per value (r·b), more than a fifth of them below 5 or some below "
             + "1: the χ² approximation does not hold; p = %.3g from %d Monte Carlo tables (seed %d; Poisson counts, "
             + "the reference's MC errors drawn too)%s", h.medianExpected(), ratioMonteCarloP, RATIO_TABLES,
@@ -277,8 +277,7 @@ public final class BreakdownCommand implements Callable<Integer> {
       boolean sparse = Math.min(totalN, totalAll - totalN) < 5 * used;
       double shareP = share.pearsonP();
       if (sparse) {
-        shareP = SelectionShare.monteCarloP(rows.stream().mapToLong(Row::observed).toArray(),
-            rows.stream().mapToLong(Row::observedAll).toArray(), MONTE_CARLO_TABLES, MONTE_CARLO_SEED);
+        shareP = SelectionShare.monteCarloP(nObs, nAll, MONTE_CARLO_TABLES, MONTE_CARLO_SEED);
         o.say("sparse table (%d selected over %d values): share p = %.3g from %d Monte Carlo tables (seed %d)",
             totalN, used, shareP, MONTE_CARLO_TABLES, MONTE_CARLO_SEED);
       }
@@ -407,8 +406,6 @@ public final class BreakdownCommand implements Callable<Integer> {
         ? "; " + observedLeftOut + " observed event" + (observedLeftOut == 1 ? " lies" : "s lie") + " in values with "
         + "no positive expectation, as is usual when the reference has few events per value" : "");
   }
-
-
 
   /** A value of the column: a number, or (run, block) for blocks, which are numbered within their run. */
   private record Key(long run, long value, boolean withRun) implements Comparable<Key> {

@@ -237,6 +237,8 @@ public final class ConsoleCommand implements Callable<Integer> {
         "--features", "--feature", "--order-by");
     /** The session (for its names). */
     private final Session session;
+    /** The command tree, built once (its commands and options do not change during a session). */
+    private final CommandLine root = Main.commandLine();
     /** The condition language's own words. */
     private static final List<String> LANGUAGE = List.of("AND", "OR", "NOT", "BETWEEN", "IN", "abs", "min", "max",
         "log", "sqrt");
@@ -282,7 +284,7 @@ public final class ConsoleCommand implements Callable<Integer> {
       int at = line.wordIndex();
       String word = line.word().substring(0, Math.min(line.wordCursor(), line.word().length()));
       if (at == 0) {
-        TreeSet<String> first = new TreeSet<>(Main.commandLine().getSubcommands().keySet());
+        TreeSet<String> first = new TreeSet<>(root.getSubcommands().keySet());
         first.remove("console");
         first.addAll(Session.SESSION_WORDS);
         first.forEach(w -> out.add(new org.jline.reader.Candidate(w)));
@@ -315,7 +317,7 @@ public final class ConsoleCommand implements Callable<Integer> {
       } else if (COLUMN_OPTIONS.contains(previous)) {
         offer.addAll(columns);
       } else if (word.startsWith("-")) {
-        CommandLine sub = Main.commandLine().getSubcommands().get(command);
+        CommandLine sub = root.getSubcommands().get(command);
         if (sub != null) {
           for (CommandLine.Model.OptionSpec o : sub.getCommandSpec().options()) {
             for (String n : o.names()) {

@@ -3,11 +3,10 @@ package triage.core.inference;
 /**
  * Whether observed/expected is the same in every group (runs, detector sectors, triggers): the χ² homogeneity
  * statistic of counts n_i against expected yields b_i known to ±σ_i, with the common ratio r = Σn/Σb over the
- * groups with b_i &gt; 0 fitted.
+ * usable groups (below) fitted.
  *
- * <p>Formula: χ² = Σ_i (n_i − r b_i)² / (r b_i + r² σ_i²) over groups with b_i &gt; 0, compared with χ²(k − 1)
- * (one degree of freedom taken by r). The denominator is the Poisson variance of n_i plus the MC variance of
- * r b_i.
+ * <p>Formula: χ² = Σ_i (n_i − r b_i)² / (r b_i + r² σ_i²) over the usable groups, compared with χ²(k − 1) (one
+ * degree of freedom taken by r). The denominator is the Poisson variance of n_i plus the MC variance of r b_i.
  *
  * <ul>
  *   <li>Groups with b_i ≤ 0 (no reference weight, or negative weights outweighing the positive ones), or with an
@@ -82,12 +81,13 @@ public record Homogeneity(double statistic, int dof, double pValue, boolean spar
    * A parametric-bootstrap p-value of {@link #statistic} for tables too sparse for the χ² approximation:
    * {@code (k + 1) / (B + 1)} with k of B simulated tables at least as extreme.
    *
-   * <p>Null model, with the plug-in values of the tested groups (see {@link #of}): the observed counts are independent,
-   * n_i* ~ Poisson(r b_i); the reference sample's estimate of each expected yield is a weighted sum, modelled as
-   * b_i* ~ Gamma with mean b_i and variance σ_i² (an effective count b_i²/σ_i² of events of weight σ_i²/b_i),
-   * with σ_i*² = σ_i² b_i* / b_i. Each table's statistic is computed from (n*, b*, σ*²) exactly as {@link #of} does,
-   * r refitted, so the simulation carries the reference's MC fluctuations as well as the Poisson ones (leaving them
-   * out makes the p-value too small). Groups left out of the observed statistic are left out of the tables.
+   * <p>Null model, with the plug-in values of the tested groups (see {@link #of}): the observed counts are
+   * independent, n_i* ~ Poisson(r b_i); the reference sample's estimate of each expected yield is a weighted sum,
+   * modelled as b_i* ~ Gamma with mean b_i and variance σ_i² (an effective count b_i²/σ_i² of events of weight
+   * σ_i²/b_i), with σ_i*² = σ_i² b_i* / b_i. Each table's statistic is computed from (n*, b*, σ*²) as {@link #of}
+   * does, over the same groups, r refitted, so the simulation carries the reference's MC fluctuations as well as
+   * the Poisson ones (leaving them out makes the p-value too small). Groups left out of the observed statistic are
+   * left out of the tables.
    * Draws: Commons RNG {@code XO_RO_SHI_RO_128_PP} from {@code seed}, its Poisson and Marsaglia–Tsang gamma
    * samplers, groups in order, so the result depends only on the inputs, B and the seed.
    *
@@ -161,7 +161,7 @@ public record Homogeneity(double statistic, int dof, double pValue, boolean spar
         int i = tested[j];
         nStar[j] = counts[j].sample();
         bStar[j] = yields[j] == null ? expected[i] : yields[j].sample();
-        vStar[j] = expected[i] > 0 ? expectedVariance[i] * bStar[j] / expected[i] : 0;
+        vStar[j] = expectedVariance[i] * bStar[j] / expected[i];
         sumN += nStar[j];
         sumB += bStar[j];
       }
