@@ -75,14 +75,9 @@ public final class RegionCommand implements Callable<Integer> {
       for (int k = 0; k < b.upSums().length; k++) {
         variations.put(m.spec().variations().get(k).name(), new double[] {b.upSums()[k], b.downSums()[k]});
       }
-      double z = b.sumOfWeights() > 0 && b.statisticalError() > 0
-          ? CountingSignificance.zBiFromBackground(n.count(), b.sumOfWeights(), b.statisticalError()).z()
-          : Double.NaN;
-      double syst2 = 0;
-      for (double[] v : variations.values()) {
-        double d = Math.max(Math.abs(v[0] - b.sumOfWeights()), Math.abs(v[1] - b.sumOfWeights()));
-        syst2 += d * d;
-      }
+      // the same rules as the check that reads the file back (Region), so a region always reads back
+      double z = CountingSignificance.zBiOrNaN(n.count(), b.sumOfWeights(), b.statisticalError());
+      double syst2 = triage.core.region.FollowUp.systSquared(b.sumOfWeights(), variations.values());
       Map<String, Long> seeds = new LinkedHashMap<>();
       Region.Model model = null;
       for (Manifest.Model mm : m.models()) {
@@ -96,12 +91,11 @@ public final class RegionCommand implements Callable<Integer> {
           seeds.put("fitSeed", triage.core.ratio.RatioModel.fromJson(text).training().settings().seed());
         }
       }
-      List<Region.Cut> cuts = new ArrayList<>();
-      for (Selection.Range r : selection.ranges()) {
-        cuts.add(new Region.Cut(r.column(), Double.isInfinite(r.lo()) ? null : r.lo(),
-            Double.isInfinite(r.hi()) ? null : r.hi()));
-      }
-      String residual = selection.residual() != null || !selection.categories().isEmpty()
+      // the cuts and the residual flag as Region derives them when it reads the file back
+      var kinds = store.kinds();
+      triage.core.select.Plan plan = triage.core.select.Where.plan(triage.core.select.Where.parse(where, kinds), kinds);
+      List<Region.Cut> cuts = Region.cutsOf(plan);
+      String residual = Region.needsResidual(plan)
           ? "the condition has parts beyond these ranges (categories or other terms): apply 'where' in full"
           : null;
       double[] ids = store.columns(m.sample(m.samples().get(obs).name()).name(),

@@ -200,6 +200,14 @@ public final class CountingSignificance {
   }
 
   /**
+   * Z_Bi of {@link #zBiFromBackground}, or NaN where it is not defined: no positive expected background, or no
+   * background uncertainty to carry (as for a yield summed from no reference event).
+   */
+  public static double zBiOrNaN(double n, double b, double sigmaB) {
+    return b > 0 && sigmaB > 0 ? zBiFromBackground(n, b, sigmaB).z() : Double.NaN;
+  }
+
+  /**
    * Z_Bi for an observed (or expected) count with background {@code b +- sigmaB}, mapped to the on/off problem
    * with {@code tau = b / sigmaB^2}, {@code n_off = tau b}.
    *

@@ -1,7 +1,6 @@
 package triage.core.region;
 
 import java.util.LinkedHashMap;
-import java.util.List;
 import java.util.Map;
 import triage.core.inference.ClsUpperLimit;
 import triage.core.inference.CountingSignificance;
@@ -71,13 +70,7 @@ public record FollowUp(long observed, double expected, double statError, double 
    */
   public static FollowUp compute(long n, double b, double statError, Map<String, double[]> variations,
       Map<String, double[]> scales, long discoveryObserved, double discoveryExpected, double discoveryStatError) {
-    double syst2 = 0;
-    for (Map<String, double[]> shifts : List.of(variations, scales)) {
-      for (double[] v : shifts.values()) {
-        double d = Math.max(Math.abs(v[0] - b), Math.abs(v[1] - b));
-        syst2 += d * d;
-      }
-    }
+    double syst2 = systSquared(b, variations.values()) + systSquared(b, scales.values());
     double syst = Math.sqrt(syst2);
     double sigma = Math.sqrt(statError * statError + syst2);
     double zBi = Double.NaN;
@@ -147,5 +140,19 @@ public record FollowUp(long observed, double expected, double statError, double 
       }
     }
     return hi;
+  }
+
+  /**
+   * The squared systematic error of a yield b from its shifted yields [up, down]: for each systematic the larger
+   * shift of the two, added in quadrature (common practice, no source). The one rule of the discovery yields a
+   * region records, of the check that reads them back, and of the follow-up.
+   */
+  public static double systSquared(double b, Iterable<double[]> shifts) {
+    double syst2 = 0;
+    for (double[] v : shifts) {
+      double d = Math.max(Math.abs(v[0] - b), Math.abs(v[1] - b));
+      syst2 += d * d;
+    }
+    return syst2;
   }
 }

@@ -303,23 +303,19 @@ public record Region(String format, String name, String where, List<Cut> cuts, S
       throw new FieldException("/discovery/variations", "has " + shifted.keySet() + " where the region's variations "
           + "are " + names);
     }
-    double syst2 = 0;
     for (var e : shifted.entrySet()) {
       double[] v = e.getValue();
       if (v == null || v.length != 2) {
         throw new FieldException("/discovery/variations/" + e.getKey(), "expected [up, down]");
       }
-      double shift = Math.max(Math.abs(v[0] - d.expected()), Math.abs(v[1] - d.expected()));
-      syst2 += shift * shift;
     }
+    double syst2 = FollowUp.systSquared(d.expected(), shifted.values());
     if (!close(Math.sqrt(syst2), d.expectedSystError())) {
       throw new FieldException("/discovery/expectedSystError", d.expectedSystError() + " does not follow from the "
           + "variations and 'expected' (they give " + Math.sqrt(syst2) + "): was the file edited after it was "
           + "frozen?");
     }
-    double z = d.expected() > 0 && d.expectedStatError() > 0
-        ? CountingSignificance.zBiFromBackground(d.observed(), d.expected(), d.expectedStatError()).z()
-        : Double.NaN;
+    double z = CountingSignificance.zBiOrNaN(d.observed(), d.expected(), d.expectedStatError());
     if (!close(z, d.localZBi())) {
       throw new FieldException("/discovery/localZBi", d.localZBi() + " does not follow from 'observed', "
           + "'expected' and 'expectedStatError' (they give " + z + "): was the file edited after it was frozen?");
