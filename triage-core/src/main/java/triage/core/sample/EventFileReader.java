@@ -84,10 +84,7 @@ public final class EventFileReader {
     }
     char delimiter = delimiterFor(file);
     MessageDigest digest = Fingerprints.sha256();
-    boolean compressed;
-    try (InputStream head = Files.newInputStream(file)) {
-      compressed = head.read() == 0x1f && head.read() == 0x8b;
-    }
+    boolean compressed = gzipped(file);
     Parse parse = null;
     try (InputStream raw = new DigestInputStream(new BufferedInputStream(Files.newInputStream(file), 1 << 16),
         digest)) {
@@ -122,6 +119,19 @@ public final class EventFileReader {
         + (rows > 0 ? " (after " + rows + " data rows)" : "") + "; expected a whole gzip file", e);
   }
 
+  /** Whether a file starts with the gzip magic bytes. */
+  private static boolean gzipped(Path file) throws IOException {
+    try (InputStream head = Files.newInputStream(file)) {
+      return head.read() == 0x1f && head.read() == 0x8b;
+    }
+  }
+
+  /** A header field as a column name: blanks stripped, and a byte-order mark taken off the first. */
+  static String headerName(String field, int index) {
+    String name = field.strip();
+    return index == 0 && name.startsWith("\uFEFF") ? name.substring(1) : name;
+  }
+
   /**
    * The column names of a sample file's header line (plain or gzip-compressed, quotes allowed), without reading on:
    * for a command that must choose a column before reading the file.
@@ -132,10 +142,7 @@ public final class EventFileReader {
     if (!Files.isRegularFile(file)) {
       throw new InputException(file, Files.exists(file) ? "not a regular file" : "file not found");
     }
-    boolean compressed;
-    try (InputStream head = Files.newInputStream(file)) {
-      compressed = head.read() == 0x1f && head.read() == 0x8b;
-    }
+    boolean compressed = gzipped(file);
     CSVFormat format = CSVFormat.DEFAULT.builder().setDelimiter(delimiterFor(file)).setQuote('"').get();
     try (InputStream raw = new BufferedInputStream(Files.newInputStream(file));
         InputStream in = compressed ? new GZIPInputStream(raw) : raw;
@@ -147,8 +154,7 @@ public final class EventFileReader {
       }
       List<String> names = new ArrayList<>();
       for (String name : it.next().toList()) {
-        name = name.strip();
-        names.add(names.isEmpty() && name.startsWith("\uFEFF") ? name.substring(1) : name);
+        names.add(headerName(name, names.size()));
       }
       return names;
     } catch (ZipException | java.io.EOFException e) {
@@ -515,10 +521,7 @@ public final class EventFileReader {
       header = new ArrayList<>();
       Map<String, Integer> at = new HashMap<>();
       for (int i = 0; i < names.size(); i++) {
-        String name = names.get(i).strip();
-        if (i == 0 && name.startsWith("\uFEFF")) {
-          name = name.substring(1);
-        }
+        String name = headerName(names.get(i), i);
         if (at.put(name, i) != null) {
           throw new InputException(file, 1, i + 1, "header names column '" + name + "' twice", null);
         }
