@@ -180,12 +180,10 @@ public final class BinnedJensenShannon {
    */
   double statisticOrNaN(WeightedSample a, WeightedSample b) {
     final double[] e = edges(b);
-    final double[] p = histogram(a, e, "observed", false);
-    final double[] q = histogram(b, e, "reference", false);
-    return p == null || q == null ? Double.NaN : divergence(p, q, logBase);
+    return divergenceOrNaN(histogram(a, e, "observed", false), histogram(b, e, "reference", false), logBase);
   }
 
-  /** The bin contents; a negative one throws when {@code strict}, else gives null. */
+  /** The bin contents; a negative one throws when {@code strict}. */
   private double[] histogram(WeightedSample s, double[] e, String name, boolean strict) {
     final int k = e.length - 1;
     final NeumaierSum[] bins = new NeumaierSum[k + 2];
@@ -200,10 +198,7 @@ public final class BinnedJensenShannon {
     final double[] h = new double[to - from];
     for (int i = from; i < to; i++) {
       h[i - from] = bins[i].value();
-      if (h[i - from] < 0) {
-        if (!strict) {
-          return null;
-        }
+      if (strict && h[i - from] < 0) {
         throw Arguments.error("%s bin %d content must be >= 0 but was %s", name, i - 1, h[i - from]);
       }
     }
@@ -234,6 +229,21 @@ public final class BinnedJensenShannon {
       }
     }
     return lo + 1;
+  }
+
+  /**
+   * As {@link #divergence}, but NaN when a bin of either histogram is negative (signed weights), where the divergence
+   * is undefined.
+   */
+  public static double divergenceOrNaN(double[] p, double[] q, LogBase base) {
+    for (double[] h : new double[][] {p, q}) {
+      for (double c : h) {
+        if (c < 0) {
+          return Double.NaN;
+        }
+      }
+    }
+    return divergence(p, q, base);
   }
 
   /**

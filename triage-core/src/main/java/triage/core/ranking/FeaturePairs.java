@@ -68,8 +68,8 @@ public final class FeaturePairs {
       refCell[f] = cells(reference[f], edges, size[f]);
       double[] q = counts(refCell[f], referenceWeights, size[f]);
       // A negative bin of one feature is a negative cell of every pair with it: those pairs get NaN below.
-      single[f] = hasNegative(q) ? Double.NaN
-          : BinnedJensenShannon.divergence(counts(obsCell[f], null, size[f]), q, BinnedJensenShannon.LogBase.NATURAL);
+      single[f] = BinnedJensenShannon.divergenceOrNaN(counts(obsCell[f], null, size[f]), q,
+          BinnedJensenShannon.LogBase.NATURAL);
     }
     int pairs = nf * (nf - 1) / 2;
     int[] firstOf = new int[pairs];
@@ -96,8 +96,7 @@ public final class FeaturePairs {
       for (int j = 0; j < ra.length; j++) {
         qr[ra[j] * size[b] + rb[j]] += referenceWeights[j];
       }
-      js[p] = hasNegative(qr) ? Double.NaN
-          : BinnedJensenShannon.divergence(po, qr, BinnedJensenShannon.LogBase.NATURAL);
+      js[p] = BinnedJensenShannon.divergenceOrNaN(po, qr, BinnedJensenShannon.LogBase.NATURAL);
     });
     List<Pair> out = new ArrayList<>(pairs);
     for (int p = 0; p < pairs; p++) {
@@ -120,15 +119,6 @@ public final class FeaturePairs {
       n += Double.isNaN(p.jensenShannon()) ? 1 : 0;
     }
     return n;
-  }
-
-  private static boolean hasNegative(double[] content) {
-    for (double c : content) {
-      if (c < 0) {
-        return true;
-      }
-    }
-    return false;
   }
 
   /** The bin of each value: {@code edges[k] ≤ v < edges[k+1]}, the last bin closed, outside values clamped. */
