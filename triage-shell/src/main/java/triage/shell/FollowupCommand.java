@@ -96,8 +96,8 @@ public final class FollowupCommand implements Callable<Integer> {
     Output o = new Output(spec, json);
     Region region = Region.read(regionFile);
     List<String> cautions = new ArrayList<>(SelectCommand.CAUTIONS);
-    String discoveryWeight = discoveryWeight(region);
-    boolean discoveryWeighted = discoveryWeight != null || weightedYields(region.discovery());
+    String discoveryWeight = Region.discoveryReferenceWeight(region);
+    boolean discoveryWeighted = discoveryWeight != null || Region.weightedYields(region.discovery());
     SampleSpec follow;
     List<ScaleShift> scales;
     String weightNote = null;
@@ -299,28 +299,6 @@ public final class FollowupCommand implements Callable<Integer> {
     result.put("cautions", cautions);
     o.result(result);
     return ExitCodes.OK;
-  }
-
-  /** The discovery reference's weight column as the region records it, or null (unweighted, or not recorded). */
-  static String discoveryWeight(Region region) {
-    if (region.provenance() == null || region.provenance().inputs() == null) {
-      return null;
-    }
-    for (Region.Input in : region.provenance().inputs()) {
-      if (in != null && Role.REFERENCE.label().equals(in.role()) && in.weight() != null) {
-        return in.weight();
-      }
-    }
-    return null;
-  }
-
-  /**
-   * Whether the discovery yields show a weighted reference: with events of weight one, b_d = Σw = N and its MC
-   * error √Σw² = √N, so σ² = b_d up to rounding; any other weights make them differ (b_d = 0 tells nothing).
-   */
-  static boolean weightedYields(Region.Discovery d) {
-    double s2 = d.expectedStatError() * d.expectedStatError();
-    return Math.abs(s2 - d.expected()) > 1e-9 * Math.max(1, Math.abs(d.expected()));
   }
 
   /** Adds the follow-up input to {@code out} when its SHA-256 is that of a discovery input (reference, observed). */

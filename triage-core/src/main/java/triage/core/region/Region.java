@@ -227,6 +227,31 @@ public record Region(String format, String name, String where, List<Cut> cuts, S
     return kinds;
   }
 
+  /**
+   * The discovery reference's weight column as a region records it, or null: unweighted, or a file written before
+   * the column was recorded.
+   */
+  public static String discoveryReferenceWeight(Region region) {
+    if (region.provenance() == null || region.provenance().inputs() == null) {
+      return null;
+    }
+    for (Input in : region.provenance().inputs()) {
+      if (in != null && triage.core.sample.Role.REFERENCE.label().equals(in.role()) && in.weight() != null) {
+        return in.weight();
+      }
+    }
+    return null;
+  }
+
+  /**
+   * Whether the discovery yields show a weighted reference: with events of weight one, b_d = Σw = N and its MC
+   * error √Σw² = √N, so σ² = b_d up to rounding; any other weights make them differ (b_d = 0 tells nothing).
+   */
+  public static boolean weightedYields(Discovery d) {
+    double s2 = d.expectedStatError() * d.expectedStatError();
+    return Math.abs(s2 - d.expected()) > 1e-9 * Math.max(1, Math.abs(d.expected()));
+  }
+
   /** The cuts that {@code triage region} writes for a condition: the box part of its plan (none when empty). */
   public static List<Cut> cutsOf(Plan plan) {
     List<Cut> cuts = new ArrayList<>();
