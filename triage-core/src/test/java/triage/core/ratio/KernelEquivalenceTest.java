@@ -42,6 +42,7 @@ class KernelEquivalenceTest {
   @CsvSource({
     "EXTENDED_LIKELIHOOD, SIGMOID, '5,5'",
     "EXTENDED_LIKELIHOOD, TANH, '7,3,2'",
+    "EXTENDED_LIKELIHOOD, SIGMOID, '4,8'",
     "BINARY_CROSS_ENTROPY, SIGMOID, '6'",
     "EXTENDED_LIKELIHOOD, SIGMOID, ''",
   })
