@@ -8,7 +8,8 @@ package triage.core.ratio;
  *
  * <p>For fixed u the network's output is linear in a, f_i = a·ĥ_i + c with ĥ_i = (h_i, 1) the last hidden layer's
  * activations of event i, so L(u, ·) = Σ A_i (e^{f_i} − 1) − Σ B_i f_i is convex in a, with Hessian
- * Σ A_i e^{f_i} ĥ_i ĥ_iᵀ. Each evaluation runs the forward pass once to get every ĥ_i, minimises over a by Newton's
+ * Σ A_i e^{f_i} ĥ_i ĥ_iᵀ. Each evaluation runs the forward pass once to get every ĥ_i (and, chunk by chunk while
+ * they are in cache, the inner problem's first sums), minimises over a by Newton's
  * method with bounds (each step the exact minimiser of the quadratic model inside the box, then Armijo backtracking
  * along it) started from the previous evaluation's a, then evaluates L and its gradient at (u, a*) with the usual
  * kernel. The box does not depend on u, so by the envelope theorem ∇φ(u) = ∂L/∂u at (u, a*(u)).
@@ -161,7 +162,14 @@ final class ProfiledObjective implements DifferentiableFunction {
       theta[outer[i]] = u[i];
     }
     Kernel kernel = full.kernel();
-    full.forEachChunk((c, start, end, ws) -> kernel.hidden(batch, theta, start, end, ws, acts));
+    // the inner problem's first pass (at the previous evaluation's output parameters) chunk by chunk right after the
+    // forward pass, while the chunk's last hidden layer is still in cache: the same sums as a separate pass
+    passA = outputParameters();
+    passDerivatives = true;
+    full.forEachChunk((c, start, end, ws) -> {
+      kernel.hidden(batch, theta, start, end, ws, acts);
+      chunk(c, start, end, ws);
+    });
     minimiseOutput();
     double loss = keepsAll ? full.valueAndGradient(theta, acts, gradient) : full.valueAndGradient(theta, gradient);
     for (int i = 0; i < outer.length; i++) {
@@ -175,13 +183,18 @@ final class ProfiledObjective implements DifferentiableFunction {
    * quadratic model inside the box exactly ({@link #boxNewtonStep}), then backtracks along it (Armijo) if the loss
    * does not fall enough; the step stays in the box, so no projection bends it.
    */
-  private void minimiseOutput() {
-    int q = m + 1;
-    double[] a = new double[q];
+  private double[] outputParameters() {
+    double[] a = new double[m + 1];
     for (int j = 0; j < m; j++) {
       a[j] = theta[outWeights + j];
     }
     a[m] = theta[outBias];
+    return a;
+  }
+
+  private void minimiseOutput() {
+    int q = m + 1;
+    double[] a = passA;
     double[] g = new double[q];
     double[][] hess = new double[q][q];
     double[] dir = new double[q];
@@ -190,7 +203,7 @@ final class ProfiledObjective implements DifferentiableFunction {
     double[][] trialHess = new double[q][q];
     // every pass computes the derivatives too: an accepted trial's are the next iteration's, and most trials are
     // accepted, so this takes fewer passes than value-only trials followed by a derivative pass
-    double value = pass(a, true, g, hess);
+    double value = gather(true, g, hess);
     for (int it = 0; it < INNER_ITERATIONS; it++) {
       double largest = 0;
       for (int j = 0; j < q; j++) {
@@ -390,6 +403,11 @@ final class ProfiledObjective implements DifferentiableFunction {
     passA = a;
     passDerivatives = derivatives;
     full.forEachChunk(this::chunk);
+    return gather(derivatives, g, hess);
+  }
+
+  /** The loss, and with {@code derivatives} its gradient and Hessian in a, from the chunks' partials (chunk order). */
+  private double gather(boolean derivatives, double[] g, double[][] hess) {
     int q = m + 1;
     double value = 0;
     double scale = 0;
