@@ -1340,4 +1340,21 @@ class CliTest {
     assertEquals(ExitCodes.USAGE, none.code());
     assertTrue(none.err().contains("--runs must be at least 1"), none.err());
   }
+
+  @Test
+  void benchFitRunsOneCaseAtAGivenClipAndRefusesUnknownCases() {
+    Run r = run("bench", "fit", "--cases", "2D", "--clip", "2", "--reference", "3000", "--observed", "300",
+        "--starts", "1", "--epochs", "5", "--max-iterations", "30");
+    assertEquals(0, r.code(), r.err());
+    assertTrue(r.out().contains("clip=2.0"), r.out());
+    assertTrue(r.out().contains("[2D]"), r.out());
+    assertFalse(r.out().contains("[1D]") || r.out().contains("[5D]"), r.out());
+
+    Run bad = run("bench", "fit", "--cases", "3D");
+    assertEquals(ExitCodes.USAGE, bad.code());
+    assertTrue(bad.err().contains("unknown case '3D'"), bad.err());
+    Run tiny = run("bench", "fit", "--clip", "0");
+    assertEquals(ExitCodes.USAGE, tiny.code());
+    assertTrue(tiny.err().contains("--clip"), tiny.err());
+  }
 }

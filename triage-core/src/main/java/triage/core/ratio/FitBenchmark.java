@@ -1,6 +1,6 @@
 package triage.core.ratio;
 
-import java.io.PrintStream;
+import java.io.PrintWriter;
 import java.util.List;
 import java.util.Locale;
 
@@ -42,7 +42,9 @@ public final class FitBenchmark {
     int maxIterations = args.length > 4 ? Integer.parseInt(args[4])
         : StoppingRule.defaults().maxIterations();
     int starts = args.length > 5 ? Integer.parseInt(args[5]) : 4;
-    run(System.out, threads, nRef, nObs, epochs, maxIterations, starts);
+    PrintWriter out = new PrintWriter(System.out, true);
+    run(out, threads, nRef, nObs, epochs, maxIterations, starts);
+    out.flush();
   }
 
   /**
@@ -54,7 +56,7 @@ public final class FitBenchmark {
   }
 
   /** Runs every case and prints the figures to {@code out}. */
-  public static void run(PrintStream out, int threads, int nRef, int nObs, int adamEpochs,
+  public static void run(PrintWriter out, int threads, int nRef, int nObs, int adamEpochs,
               int maxIterations, int starts) {
     run(out, threads, nRef, nObs, adamEpochs, maxIterations, starts, null);
   }
@@ -64,10 +66,16 @@ public final class FitBenchmark {
    * training problem and this engine's L-BFGS trajectory there for a side-by-side run of the same
    * fit in another framework ({@link FrameworkExport}).
    */
-  public static void run(PrintStream out, int threads, int nRef, int nObs, int adamEpochs,
+  public static void run(PrintWriter out, int threads, int nRef, int nObs, int adamEpochs,
               int maxIterations, int starts, java.nio.file.Path exportDir) {
-    out.printf(Locale.ROOT, "FitBenchmark: threads=%d nRef=%d nObs=%d adamEpochs=%d kernel=%s%n",
-        threads, nRef, nObs, adamEpochs, Kernels.select(KernelChoice.AUTO).name());
+    run(out, threads, nRef, nObs, adamEpochs, maxIterations, starts, exportDir, 9.0, java.util.Set.of("1D", "2D", "5D"));
+  }
+
+  /** As above, with every fit at {@code clip}, and only the named cases (of 1D, 2D, 5D). */
+  public static void run(PrintWriter out, int threads, int nRef, int nObs, int adamEpochs,
+              int maxIterations, int starts, java.nio.file.Path exportDir, double clip, java.util.Set<String> cases) {
+    out.printf(Locale.ROOT, "FitBenchmark: threads=%d nRef=%d nObs=%d adamEpochs=%d clip=%s kernel=%s%n",
+        threads, nRef, nObs, adamEpochs, clip, Kernels.select(KernelChoice.AUTO).name());
     warmUp(threads);
     double[] probe = Kernels.vectorAvailable() ? VectorProbe.measure(20_000) : null;
     if (probe != null) {
@@ -76,12 +84,18 @@ public final class FitBenchmark {
           probe[0], probe[1], probe[2], probe[3]);
     }
     int bump = Math.max(1, nObs / 50);
-    runCase(out, "1D", SyntheticData.exponentialBump(nRef, nObs, bump, 4.0, 0.16, 101L),
-        threads, adamEpochs, maxIterations, starts, probe, exportDir);
-    runCase(out, "2D", SyntheticData.gaussianBump(new double[] {1.5, 0.0}, 0.25, nRef, nObs,
-        bump, 202L), threads, adamEpochs, maxIterations, starts, probe, exportDir);
-    runCase(out, "5D", SyntheticData.gaussianBump(new double[] {1.5, 0.0, 0.0, 0.0, 0.0}, 0.25,
-        nRef, nObs, bump, 505L), threads, adamEpochs, maxIterations, starts, probe, exportDir);
+    if (cases.contains("1D")) {
+      runCase(out, "1D", SyntheticData.exponentialBump(nRef, nObs, bump, 4.0, 0.16, 101L),
+          threads, adamEpochs, maxIterations, starts, probe, exportDir, clip);
+    }
+    if (cases.contains("2D")) {
+      runCase(out, "2D", SyntheticData.gaussianBump(new double[] {1.5, 0.0}, 0.25, nRef, nObs,
+          bump, 202L), threads, adamEpochs, maxIterations, starts, probe, exportDir, clip);
+    }
+    if (cases.contains("5D")) {
+      runCase(out, "5D", SyntheticData.gaussianBump(new double[] {1.5, 0.0, 0.0, 0.0, 0.0}, 0.25,
+          nRef, nObs, bump, 505L), threads, adamEpochs, maxIterations, starts, probe, exportDir, clip);
+    }
   }
 
   private static void warmUp(int threads) {
@@ -94,11 +108,11 @@ public final class FitBenchmark {
     RatioTrainer.fit(data, s.withOptimiser(OptimiserKind.ADAM).withAdamEpochs(150));
   }
 
-  private static void runCase(PrintStream out, String name, TrainingData data, int threads,
+  private static void runCase(PrintWriter out, String name, TrainingData data, int threads,
                 int adamEpochs, int maxIterations, int starts, double[] probe,
-                java.nio.file.Path exportDir) {
+                java.nio.file.Path exportDir, double clip) {
     FitSettings base = FitSettings.defaults().withThreads(threads).withHiddenWidths(List.of(5, 5))
-        .withClip(9.0).withSeed(1L)
+        .withClip(clip).withSeed(1L)
         .withStoppingRule(StoppingRule.defaults().withMaxIterations(maxIterations));
     Architecture arch = new Architecture(data.features(), base.hiddenWidths(), base.activation());
     int p = arch.parameterCount();
@@ -141,7 +155,7 @@ public final class FitBenchmark {
   }
 
   /** One L-BFGS variant: a single-start fit with its log, then every start of a multi-start fit. */
-  private static void lbfgsCase(PrintStream out, String name, TrainingData data, FitSettings settings, int starts,
+  private static void lbfgsCase(PrintWriter out, String name, TrainingData data, FitSettings settings, int starts,
                 java.nio.file.Path exportDir) {
     String label = settings.optimiser() == OptimiserKind.PROFILED_LBFGS ? "profiled L-BFGS" : "projected L-BFGS";
     FrameworkExport.Trajectory trajectory = new FrameworkExport.Trajectory();

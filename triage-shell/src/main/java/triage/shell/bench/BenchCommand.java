@@ -323,10 +323,14 @@ public final class BenchCommand implements Runnable {
 
   /** {@code triage bench fit}. */
   @Command(name = "fit", mixinStandardHelpOptions = true,
-      description = {"Ratio-model fits on generated 1D, 2D and 5D data (d-5-5-1 sigmoid, clip 9): seconds per fit "
+      description = {"Ratio-model fits on generated 1D, 2D and 5D data (d-5-5-1 sigmoid, clip 9 or --clip): seconds per fit "
           + "to the stopping rule, loss evaluations, t, events·parameters per second per evaluation against the "
           + "machine's measured arithmetic limit, and Adam at a fixed epoch count."})
   static final class FitBench implements Callable<Integer> {
+    /** Command spec, for usage errors. */
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
     /** Threads and sample sizes. */
     @CommandLine.Mixin
     FitSizes sizes;
@@ -347,6 +351,17 @@ public final class BenchCommand implements Runnable {
             + "each start's seconds and t are printed with their spread, since one seed's fit is one draw.")
     int starts;
 
+    /** Clip. */
+    @Option(names = "--clip", defaultValue = "9", paramLabel = "C",
+        description = "Weight clip of every fit (default: ${DEFAULT-VALUE}; `calibrate --tune-clip` chose 2 on the 5D "
+            + "problem, see DEVELOPERS.md).")
+    double clip;
+
+    /** Cases. */
+    @Option(names = "--cases", defaultValue = "1D,2D,5D", split = ",", paramLabel = "CASE",
+        description = "Cases to run, of 1D, 2D, 5D (default: ${DEFAULT-VALUE}).")
+    java.util.List<String> cases;
+
     /** Export folder. */
     @Option(names = "--export", paramLabel = "DIR",
         description = "Also write each case's training problem and the L-BFGS trajectory to DIR, for the same fit "
@@ -355,8 +370,21 @@ public final class BenchCommand implements Runnable {
 
     @Override
     public Integer call() {
-      triage.core.ratio.FitBenchmark.run(System.out, sizes.threads, sizes.reference, sizes.observed, epochs,
-          maxIterations, starts, export);
+      java.util.Set<String> known = java.util.Set.of("1D", "2D", "5D");
+      for (String c : cases) {
+        if (!known.contains(c)) {
+          throw new CommandLine.ParameterException(spec.commandLine(), "--cases: unknown case '" + c
+              + "' (expected 1D, 2D or 5D)");
+        }
+      }
+      if (!(clip >= triage.core.ratio.FitSettings.MIN_CLIP) || Double.isInfinite(clip)) {
+        throw new CommandLine.ParameterException(spec.commandLine(), "--clip: expected a finite number of at least "
+            + triage.core.ratio.FitSettings.MIN_CLIP + ", got " + clip);
+      }
+      java.io.PrintWriter out = spec.commandLine().getOut();
+      triage.core.ratio.FitBenchmark.run(out, sizes.threads, sizes.reference, sizes.observed, epochs,
+          maxIterations, starts, export, clip, java.util.Set.copyOf(cases));
+      out.flush();
       return ExitCodes.OK;
     }
   }
