@@ -43,7 +43,7 @@ public final class FitBenchmark {
         : StoppingRule.defaults().maxIterations();
     int starts = args.length > 5 ? Integer.parseInt(args[5]) : 4;
     PrintWriter out = new PrintWriter(System.out, true);
-    run(out, threads, nRef, nObs, epochs, maxIterations, starts);
+    run(out, threads, nRef, nObs, epochs, maxIterations, starts, null, 9.0, java.util.Set.of("1D", "2D", "5D"));
     out.flush();
   }
 
@@ -55,23 +55,11 @@ public final class FitBenchmark {
     return SyntheticData.gaussianReference(d, n, new SplitMix64(seed));
   }
 
-  /** Runs every case and prints the figures to {@code out}. */
-  public static void run(PrintWriter out, int threads, int nRef, int nObs, int adamEpochs,
-              int maxIterations, int starts) {
-    run(out, threads, nRef, nObs, adamEpochs, maxIterations, starts, null);
-  }
-
   /**
-   * Runs every case, prints the figures, and with {@code exportDir} not null writes each case's
-   * training problem and this engine's L-BFGS trajectory there for a side-by-side run of the same
-   * fit in another framework ({@link FrameworkExport}).
+   * Runs the named cases (of 1D, 2D, 5D) with every fit at {@code clip}, prints the figures to {@code out}, and with
+   * {@code exportDir} not null writes each case's training problem and this engine's L-BFGS trajectory there for a
+   * side-by-side run of the same fit in another framework ({@link FrameworkExport}).
    */
-  public static void run(PrintWriter out, int threads, int nRef, int nObs, int adamEpochs,
-              int maxIterations, int starts, java.nio.file.Path exportDir) {
-    run(out, threads, nRef, nObs, adamEpochs, maxIterations, starts, exportDir, 9.0, java.util.Set.of("1D", "2D", "5D"));
-  }
-
-  /** As above, with every fit at {@code clip}, and only the named cases (of 1D, 2D, 5D). */
   public static void run(PrintWriter out, int threads, int nRef, int nObs, int adamEpochs,
               int maxIterations, int starts, java.nio.file.Path exportDir, double clip, java.util.Set<String> cases) {
     out.printf(Locale.ROOT, "FitBenchmark: threads=%d nRef=%d nObs=%d adamEpochs=%d clip=%s kernel=%s%n",

@@ -164,13 +164,14 @@ final class ProfiledObjective implements DifferentiableFunction {
     Kernel kernel = full.kernel();
     // the inner problem's first pass (at the previous evaluation's output parameters) chunk by chunk right after the
     // forward pass, while the chunk's last hidden layer is still in cache: the same sums as a separate pass
-    passA = outputParameters();
+    double[] a = outputParameters();
+    passA = a;
     passDerivatives = true;
     full.forEachChunk((c, start, end, ws) -> {
       kernel.hidden(batch, theta, start, end, ws, acts);
       chunk(c, start, end, ws);
     });
-    minimiseOutput();
+    minimiseOutput(a);
     double loss = keepsAll ? full.valueAndGradient(theta, acts, gradient) : full.valueAndGradient(theta, gradient);
     for (int i = 0; i < outer.length; i++) {
       g[i] = gradient[outer[i]];
@@ -178,11 +179,7 @@ final class ProfiledObjective implements DifferentiableFunction {
     return loss;
   }
 
-  /**
-   * Newton's method with bounds over the output parameters, from their current values in θ: each step minimises the
-   * quadratic model inside the box exactly ({@link #boxNewtonStep}), then backtracks along it (Armijo) if the loss
-   * does not fall enough; the step stays in the box, so no projection bends it.
-   */
+  /** The output layer's weights and bias, as now in θ. */
   private double[] outputParameters() {
     double[] a = new double[m + 1];
     for (int j = 0; j < m; j++) {
@@ -192,9 +189,15 @@ final class ProfiledObjective implements DifferentiableFunction {
     return a;
   }
 
-  private void minimiseOutput() {
+  /**
+   * Newton's method with bounds over the output parameters, from {@code start} (their values in θ, at which the
+   * chunks' partials already hold the first pass): each step minimises the
+   * quadratic model inside the box exactly ({@link #boxNewtonStep}), then backtracks along it (Armijo) if the loss
+   * does not fall enough; the step stays in the box, so no projection bends it.
+   */
+  private void minimiseOutput(double[] start) {
     int q = m + 1;
-    double[] a = passA;
+    double[] a = start;
     double[] g = new double[q];
     double[][] hess = new double[q][q];
     double[] dir = new double[q];

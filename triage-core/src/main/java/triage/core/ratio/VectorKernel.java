@@ -404,11 +404,11 @@ final class VectorKernel implements Kernel {
     }
     int o = vo + c * stride;
     switch (count - c) {
-      case 0 -> dot(u, uo, ONES, 0, lanes, bSlot * LANES);
+      case 0 -> sum(u, uo, lanes, bSlot * LANES);
       case 1 -> dot2(u, uo, v, o, ONES, 0, lanes, (wSlot + c) * LANES, bSlot * LANES);
       case 2 -> {
         dot2(u, uo, v, o, v, o + stride, lanes, (wSlot + c) * LANES, (wSlot + c + 1) * LANES);
-        dot(u, uo, ONES, 0, lanes, bSlot * LANES);
+        sum(u, uo, lanes, bSlot * LANES);
       }
       default -> dot4(u, uo, v, o, v, o + stride, v, o + 2 * stride, ONES, 0, lanes, (wSlot + c) * LANES,
           (wSlot + c + 1) * LANES, (wSlot + c + 2) * LANES, bSlot * LANES);

@@ -303,6 +303,14 @@ public final class BenchCommand implements Runnable {
         (t2 - t1) / 1e6);
   }
 
+  /** A usage error unless {@code clip} is finite and at least {@link triage.core.ratio.FitSettings#MIN_CLIP}. */
+  static void checkClip(CommandLine cl, double clip) {
+    if (!(clip >= triage.core.ratio.FitSettings.MIN_CLIP) || !Double.isFinite(clip)) {
+      throw new CommandLine.ParameterException(cl, "--clip must be finite and at least "
+          + triage.core.ratio.FitSettings.MIN_CLIP + ", found " + clip);
+    }
+  }
+
   /** Threads and sample sizes of the fit and calibration benchmarks. */
   static final class FitSizes {
     /** Threads. */
@@ -377,10 +385,7 @@ public final class BenchCommand implements Runnable {
               + "' (expected 1D, 2D or 5D)");
         }
       }
-      if (!(clip >= triage.core.ratio.FitSettings.MIN_CLIP) || Double.isInfinite(clip)) {
-        throw new CommandLine.ParameterException(spec.commandLine(), "--clip: expected a finite number of at least "
-            + triage.core.ratio.FitSettings.MIN_CLIP + ", got " + clip);
-      }
+      checkClip(spec.commandLine(), clip);
       java.io.PrintWriter out = spec.commandLine().getOut();
       triage.core.ratio.FitBenchmark.run(out, sizes.threads, sizes.reference, sizes.observed, epochs,
           maxIterations, starts, export, clip, java.util.Set.copyOf(cases));
@@ -420,10 +425,7 @@ public final class BenchCommand implements Runnable {
 
     @Override
     public Integer call() throws IOException {
-      if (!(clip >= triage.core.ratio.FitSettings.MIN_CLIP) || !Double.isFinite(clip)) {
-        throw new CommandLine.ParameterException(new CommandLine(this), "--clip must be finite and at least "
-            + triage.core.ratio.FitSettings.MIN_CLIP + ", found " + clip);
-      }
+      checkClip(new CommandLine(this), clip);
       triage.core.ratio.OptimiserKind kind = switch (optimiser) {
         case "profiled" -> triage.core.ratio.OptimiserKind.PROFILED_LBFGS;
         case "lbfgs" -> triage.core.ratio.OptimiserKind.PROJECTED_LBFGS;
